@@ -1,0 +1,7 @@
+/** The four roles of PRODUCT.md, least to most privileged. */
+export const ROLES = ['viewer', 'engineer', 'reviewer', 'admin'] as const;
+export type Role = (typeof ROLES)[number];
+
+export function isRole(value: unknown): value is Role {
+	return typeof value === 'string' && (ROLES as readonly string[]).includes(value);
+}
