@@ -395,6 +395,19 @@ export function createDatabase(name, { fresh = false, env = process.env } = {}) 
 	ensureAppUser(env, [...new Set([APP_DATABASE, TEST_DATABASE, name])]);
 }
 
+/**
+ * Fills DB_PORT and DB_PASSWORD in `env` from this working copy's running server and its stored
+ * password when they are not set, so `npm run migrate`, `npm run seed` and manual test runs reach
+ * the private server without extra typing. Never overrides a value that is set.
+ */
+export function applyLocalDatabaseEnv(env = process.env) {
+	const s = status();
+	if (!env.DB_PORT && s.running && s.port) env.DB_PORT = String(s.port);
+	if (!env.DB_PASSWORD && existsSync(PASSWORD_FILE)) env.DB_PASSWORD = readFileSync(PASSWORD_FILE, 'utf8').trim();
+	if (!env.DB_HOST) env.DB_HOST = '127.0.0.1';
+	return env;
+}
+
 /** A free TCP port on 127.0.0.1 at or above `from`. */
 export async function freePort(from) {
 	for (let port = from; port < from + 200; port++) {
