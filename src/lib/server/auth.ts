@@ -142,3 +142,11 @@ export async function authenticate(
 	if (reason === 'inactive') return { ok: false, reason: 'inactive' };
 	return { ok: false, reason: 'invalid' };
 }
+
+/** Audit a sign-out (its own small transaction; the session cookie is cleared by the caller). */
+export async function recordSignOut(user: Pick<SessionUser, 'id' | 'email'>, clientAddress: string | null): Promise<void> {
+	initModels();
+	await sequelize().transaction(async (tx) => {
+		await recordAudit(tx, { actor: user, action: 'auth.signout', entityType: 'user', entityId: user.id, ip: clientAddress });
+	});
+}

@@ -3,6 +3,7 @@
  * (403, 404, 409, 422) with `httpStatusOf`. Unexpected errors are anything else and end in
  * `handleError` (logged with an id).
  */
+import { fail } from '@sveltejs/kit';
 import { PermissionDenied } from '../auth/roles';
 
 export { PermissionDenied };
@@ -52,4 +53,15 @@ export function isExpectedError(e: unknown): e is ServiceError | PermissionDenie
 /** The HTTP status of an expected error (403 for PermissionDenied). */
 export function httpStatusOf(e: ServiceError | PermissionDenied): number {
 	return e instanceof PermissionDenied ? 403 : e.status;
+}
+
+/**
+ * For form actions: turn an expected error into `fail(status, { errors, values })` with the
+ * message under its field (or `_form`); rethrow anything unexpected so `handleError` logs it.
+ */
+export function actionFailure<V extends Record<string, unknown>>(e: unknown, values: V, action?: string) {
+	if (!isExpectedError(e)) throw e;
+	const errors: Record<string, string> = { ...(e instanceof ServiceError ? e.fieldErrors : {}) };
+	if (Object.keys(errors).length === 0) errors._form = e.message;
+	return fail(httpStatusOf(e), { errors, values, action: action ?? null });
 }
