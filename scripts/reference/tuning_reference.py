@@ -121,7 +121,8 @@ fo['chr-load-0'] = {'P': [0.3 / a, None, None], 'PI': [0.6 / a, 4 * L, None], 'P
 fo['chr-load-20'] = {'P': [0.7 / a, None, None], 'PI': [0.7 / a, 2.3 * L, None], 'PID': [1.2 / a, 2 * L, 0.42 * L]}
 lam = 0.8
 fo['imc'] = {
-    'PI': [T / (K * (lam + L)), T, None],
+    # Rivera et al. 1986 PI row: delay left out of the controller model (Kc K = τ/λ, Ti = τ)
+    'PI': [T / (K * lam), T, None],
     'PID': [(2 * T + L) / (K * (2 * lam + L)), T + L / 2, T * L / (2 * T + L)],
 }
 tc = L

@@ -45,11 +45,13 @@ function isUnused(x: number | null | undefined): x is null | undefined {
 	return x === null || x === undefined;
 }
 
-function fail<T>(field: string, reason: string): ConversionOutcome<T> {
+type Failure = { ok: false; reason: string; field: string };
+
+function fail(field: string, reason: string): Failure {
 	return { ok: false, field, reason };
 }
 
-function checkTimes(g: PidTimes): ConversionOutcome<PidTimes> | null {
+function checkTimes(g: PidTimes): Failure | null {
 	if (!Number.isFinite(g.kp)) return fail('kp', 'Kp must be a finite number.');
 	if (!isUnused(g.ti) && !(Number.isFinite(g.ti) && g.ti > 0))
 		return fail('ti', 'Ti must be a positive number of seconds.');
@@ -110,7 +112,7 @@ export function idealToSeries(ideal: PidTimes): ConversionOutcome<PidTimes> {
  */
 export function idealToParallel(ideal: PidTimes): ConversionOutcome<ParallelGains> {
 	const bad = checkTimes(ideal);
-	if (bad) return bad as ConversionOutcome<ParallelGains>;
+	if (bad) return bad;
 	const { kp, ti, td } = ideal;
 	return {
 		ok: true,
