@@ -84,7 +84,7 @@ export async function authenticate(
 ): Promise<SignInOutcome> {
 	initModels();
 	const email = emailInput.trim().toLowerCase();
-	const keys = throttleKeys(email, clientAddress);
+	const keys = throttleKeys(email);
 	const lock = await lockedUntil(keys, now);
 	const user = await User.findOne({ where: { email } });
 	const auditTarget = user
@@ -110,7 +110,7 @@ export async function authenticate(
 		const sessionView = toSessionUser(user);
 		if (sessionView) {
 			await sequelize().transaction(async (tx) => {
-				await clearFailures(tx, keys.filter((k) => k.kind === 'email'));
+				await clearFailures(tx, keys);
 				await User.update({ last_sign_in_at: now }, { where: { id: user.id }, transaction: tx });
 				await recordAudit(tx, {
 					actor: { id: sessionView.id, email: sessionView.email },

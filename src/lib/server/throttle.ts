@@ -1,7 +1,7 @@
 /**
  * Sign-in throttle, stored in `sign_in_throttle` (no process memory, so it holds across restarts
- * and across several app servers). Keys are SHA-256 hashes of the lower-cased email and of the
- * client address; the raw values are never stored. After `maxFailures` failures within the
+ * and across several app servers). Keys are SHA-256 hashes of the lower-cased email; the raw
+ * value is never stored. After `maxFailures` failures within the
  * window a key is locked for `lockSeconds`; every further failure after a lock doubles the lock
  * (exponential back-off, capped at 24 h). Lockout with back-off is common practice
  * (OWASP Authentication Cheat Sheet, "Account lockout"; from memory).
@@ -17,14 +17,12 @@ import { SignInThrottle, initModels } from './db/models';
 export const FAILURE_WINDOW_SECONDS = 15 * 60;
 /** Longest lock the back-off can reach, in seconds. */
 export const MAX_LOCK_SECONDS = 24 * 60 * 60;
-/** A client address may fail this many times more than one email before it is locked. */
-export const ADDRESS_FACTOR = 4;
 
 /** One throttled identity: the hash stored and the failures it may have before locking. */
 export interface ThrottleKey {
 	hash: string;
 	maxFailures: number;
-	kind: 'email' | 'address';
+	kind: 'email';
 }
 
 /** The throttle settings in force (from SIGNIN_MAX_FAILURES and SIGNIN_LOCK_SECONDS). */
@@ -44,17 +42,13 @@ export function throttleHash(kind: 'email' | 'address', value: string): string {
 	return createHash('sha256').update(`${kind}:${value.trim().toLowerCase()}`).digest('hex');
 }
 
-/** The keys one sign-in attempt counts against: its email, and its client address when known. */
-export function throttleKeys(email: string, clientAddress: string | null, settings = throttleSettings()): ThrottleKey[] {
-	const keys: ThrottleKey[] = [{ hash: throttleHash('email', email), maxFailures: settings.maxFailures, kind: 'email' }];
-	if (clientAddress) {
-		keys.push({
-			hash: throttleHash('address', clientAddress),
-			maxFailures: settings.maxFailures * ADDRESS_FACTOR,
-			kind: 'address'
-		});
-	}
-	return keys;
+/**
+ * The keys one sign-in attempt counts against: its email. Client addresses are deliberately not
+ * locked: behind a proxy without a configured address header every person shares one address,
+ * and one attacker could then lock everybody out.
+ */
+export function throttleKeys(email: string, settings = throttleSettings()): ThrottleKey[] {
+	return [{ hash: throttleHash('email', email), maxFailures: settings.maxFailures, kind: 'email' }];
 }
 
 /** Lock length in seconds after `failures` failures (0 when below the limit): lockSeconds·2^(failures−max), capped. */
