@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { ReductionError, halfRule } from './reduction';
+import { ReductionError, halfRule, reduceRational } from './reduction';
 import reference from './fixtures/tuning-reference.json';
 
 const R = reference.reduction;
@@ -98,5 +98,64 @@ describe('half rule (Skogestad 2003, J. Process Control 13, 291–309, section 3
 		expect(field(() => halfRule({ gain: 0, lags: [1] }))).toBe('gain');
 		expect(field(() => halfRule({ gain: 1, lags: [1], delay: Number.NaN }))).toBe('delay');
 		expect(field(() => halfRule({ gain: 1, lags: [1], leads: [0.5, 0.7] }))).toBe('leads');
+	});
+});
+
+describe('reduceRational: half rule from num/den coefficients', () => {
+	it('W1/W2: the expanded E2 polynomials give the same reduced models', () => {
+		// Skogestad 2003 example E2; coefficients expanded with numpy.polymul and reduced models in
+		// fixture reduction.e2 [C] (from numpy.roots). The triple lag 0.05 must be recognised as real.
+		const res = reduceRational(R.e2.num, R.e2.den, 0);
+		expect(res.ok).toBe(true);
+		if (!res.ok) return;
+		expect(res.fopdt.k).toBeCloseTo(1, 12);
+		expect(res.fopdt.tau).toBeCloseTo(2.5, 9);
+		expect(res.fopdt.theta).toBeCloseTo(1.47, 9);
+		expect(res.sopdt!.tau1).toBeCloseTo(2, 9);
+		expect(res.sopdt!.tau2).toBeCloseTo(1.2, 9);
+		expect(res.sopdt!.theta).toBeCloseTo(0.77, 9);
+		expect(res.rhpZeros.map((t) => Number(t.toFixed(9)))).toEqual([0.3]);
+		expect(res.leads.map((t) => Number(t.toFixed(9)))).toEqual([0.08]);
+	});
+
+	it('W4 and W15(b) from their expanded denominators, with the delay passed through', () => {
+		// Fixtures reduction.w4 and reduction.w15 [C]; delay adds to θ (Skogestad 2003).
+		const w4 = reduceRational([1], R.w4.den, 0.5);
+		expect(w4.ok).toBe(true);
+		if (!w4.ok) return;
+		expect(w4.fopdt.tau).toBeCloseTo(R.w4.fopdt.tau, 9);
+		expect(w4.fopdt.theta).toBeCloseTo(R.w4.fopdt.theta + 0.5, 9);
+		expect(w4.sopdt!.tau2).toBeCloseTo(R.w4.sopdt.tau2, 9);
+		const w15 = reduceRational([1], R.w15.den, 0);
+		expect(w15.ok).toBe(true);
+		if (!w15.ok) return;
+		expect(w15.fopdt.tau).toBeCloseTo(R.w15.fopdt.tau, 9);
+		expect(w15.fopdt.theta).toBeCloseTo(R.w15.fopdt.theta, 9);
+		expect(w15.sopdt!.theta).toBeCloseTo(R.w15.sopdt.theta, 9);
+	});
+
+	it('uses the DC gain num(0)/den(0)', () => {
+		// 3/(2s+1)(s+1) scaled: den = 2s² + 3s + 1, gain 3 (final value theorem).
+		const res = reduceRational([6], [4, 6, 2], 0);
+		expect(res.ok && res.fopdt.k).toBe(3);
+	});
+
+	it('says why the half rule cannot be used', () => {
+		const complex = reduceRational([1], [1, 0.4, 1], 0.2);
+		expect(complex.ok).toBe(false);
+		if (!complex.ok) {
+			expect(complex.field).toBe('den');
+			expect(complex.reason).toMatch(/complex poles/);
+		}
+		const integrating = reduceRational([1], [1, 1, 0], 0);
+		expect(!integrating.ok && integrating.reason).toMatch(/IPDT/);
+		const unstable = reduceRational([1], [1, -1], 0);
+		expect(!unstable.ok && unstable.reason).toMatch(/unstable/);
+		const zeroGain = reduceRational([1, 0], [1, 3, 2], 0);
+		expect(!zeroGain.ok && zeroGain.field).toBe('num');
+		const improper = reduceRational([1, 2, 3], [1, 1], 0);
+		expect(!improper.ok && improper.reason).toMatch(/improper/);
+		const bad = reduceRational([1], [1, Number.NaN], 0);
+		expect(!bad.ok && bad.field).toBe('den');
 	});
 });

@@ -4,6 +4,7 @@
  * a plant given as gain, lags, LHP zeros, RHP zeros and delay is approximated by a first-order
  * (FOPDT) or second-order (SOPDT) plus dead time model. Times in seconds.
  */
+import { roots } from './roots';
 
 /** Plant in time-constant form: k·Π(T0,j s+1)·Π(−Tk s+1)/Π(τi s+1)·e^(−delay·s). */
 export interface HalfRuleInput {
@@ -154,4 +155,76 @@ export function halfRule(input: HalfRuleInput): HalfRuleResult {
 		sopdtReason = 'Only one lag remains, so there is no second-order model.';
 	}
 	return { fopdt, sopdt, sopdtReason, notes };
+}
+
+/** Outcome of reduceRational: the reduction, or the reason the half rule cannot be used. */
+export type RationalReduction =
+	| ({ ok: true; lags: number[]; leads: number[]; rhpZeros: number[] } & HalfRuleResult)
+	| { ok: false; reason: string; field: string };
+
+/**
+ * Half-rule reduction of num(s)/den(s)·e^(−delay·s) (descending coefficients, delay in seconds):
+ * time constants from the polynomial roots (a real root −1/τ gives (τs+1); a positive real zero
+ * 1/T gives (−Ts+1)), gain num(0)/den(0), then `halfRule`. Only real roots qualify: complex
+ * pairs, poles at the origin or in the RHP, and zeros at the origin give { ok: false } with the
+ * reason — there is no half-rule equivalent; identify an SOPDT model from a step test instead,
+ * or use the standard second-order structure. Roots whose imaginary part is below 1e-4·|root|
+ * count as real (multiple roots are only computed to about ε^(1/m)).
+ */
+export function reduceRational(
+	num: readonly number[],
+	den: readonly number[],
+	delay = 0,
+	samplingPeriod = 0
+): RationalReduction {
+	const finiteList = (p: readonly number[]) => Array.isArray(p) && p.length > 0 && p.every(Number.isFinite);
+	if (!finiteList(num)) return { ok: false, field: 'num', reason: 'The numerator must be a non-empty list of finite numbers.' };
+	if (!finiteList(den)) return { ok: false, field: 'den', reason: 'The denominator must be a non-empty list of finite numbers.' };
+	if (!(Number.isFinite(delay) && delay >= 0)) return { ok: false, field: 'delay', reason: 'The delay must be zero or positive.' };
+	const n = trim(num);
+	const d = trim(den);
+	if (n.length === 0) return { ok: false, field: 'num', reason: 'The numerator is zero.' };
+	if (d.length === 0) return { ok: false, field: 'den', reason: 'The denominator is zero.' };
+	if (n.length > d.length) return { ok: false, field: 'num', reason: 'The plant is improper (more zeros than poles).' };
+	if (d[d.length - 1] === 0)
+		return { ok: false, field: 'den', reason: 'The plant has a pole at the origin (integrating): use the IPDT structure instead of the half rule.' };
+	if (n[n.length - 1] === 0) return { ok: false, field: 'num', reason: 'The plant has a zero at the origin (zero steady-state gain): no FOPDT equivalent.' };
+	const gain = n[n.length - 1] / d[d.length - 1];
+
+	const poles = roots(d);
+	const zeros = roots(n);
+	const isReal = (z: { re: number; im: number }) => Math.abs(z.im) <= 1e-4 * Math.hypot(z.re, z.im);
+	if (!poles.every(isReal))
+		return {
+			ok: false,
+			field: 'den',
+			reason: 'The plant has complex poles: the half rule needs real lags. Use the standard second-order structure or fit an SOPDT model to step data.'
+		};
+	if (!zeros.every(isReal))
+		return { ok: false, field: 'num', reason: 'The plant has complex zeros: the half rule needs real zeros.' };
+	const lags: number[] = [];
+	for (const p of poles) {
+		if (p.re >= 0)
+			return { ok: false, field: 'den', reason: 'The plant has an unstable pole: the half rule applies to stable plants only.' };
+		lags.push(-1 / p.re);
+	}
+	const leads: number[] = [];
+	const rhpZeros: number[] = [];
+	for (const z of zeros) {
+		if (z.re < 0) leads.push(-1 / z.re);
+		else rhpZeros.push(1 / z.re);
+	}
+	try {
+		const res = halfRule({ gain, lags, leads, rhpZeros, delay, samplingPeriod });
+		return { ok: true, lags, leads, rhpZeros, ...res };
+	} catch (e) {
+		if (e instanceof ReductionError) return { ok: false, field: e.field, reason: e.message };
+		throw e;
+	}
+}
+
+function trim(p: readonly number[]): number[] {
+	let i = 0;
+	while (i < p.length && p[i] === 0) i++;
+	return p.slice(i);
 }
