@@ -27,9 +27,9 @@ const FOPDT: TuningPlant = { structure: 'fopdt', k: 1.2, tau: 4, theta: 0.8 };
 const IPDT: TuningPlant = { structure: 'ipdt', k: 0.5, theta: 2 };
 const SOPDT: TuningPlant = { structure: 'sopdt', k: 2, tau: 5, tau2: 2, theta: 1 };
 
-const FO = reference.tuning.fopdt.rules as Record<string, Record<string, Row>>;
-const IP = reference.tuning.ipdt.rules as Record<string, Record<string, Row>>;
-const SO = reference.tuning.sopdt.rules as Record<string, Record<string, Row>>;
+const FO = reference.tuning.fopdt.rules as unknown as Record<string, Record<string, Row>>;
+const IP = reference.tuning.ipdt.rules as unknown as Record<string, Record<string, Row>>;
+const SO = reference.tuning.sopdt.rules as unknown as Record<string, Record<string, Row>>;
 
 /** Rounded sheet values (6 significant digits): relative tolerance 1e-5. */
 function expectRounded(actual: number | null, expected: number | null): void {
