@@ -122,7 +122,11 @@ const ZN = 'J. G. Ziegler, N. B. Nichols, "Optimum settings for automatic contro
 const CHR =
 	'K. L. Chien, J. A. Hrones, J. B. Reswick, "On the automatic control of generalized passive systems", Trans. ASME 74 (1952) 175–185 (table as given by Åström & Hägglund, PID Controllers, ISA 1995)';
 
-/** Rule metadata: name, citation, design aim, validity range, published form, parameter. */
+/**
+ * Rule metadata: name, citation, design aim, validity range, published form, parameter.
+ * Cohen–Coon PI is pinned to the gain factor 0.9 + r/12 (Seborg et al.); sources disagree (one
+ * handbook table prints 1.1 + r/12), which the rule's notes tell the user.
+ */
 export const TUNING_RULES: Readonly<Record<TuningRuleId, TuningRuleInfo>> = {
 	'zn-step': {
 		id: 'zn-step',

@@ -9,6 +9,7 @@ import type { RequestHandler } from './$types';
 import { designController, DesignError } from '$lib/control/design';
 import { parseDesignRequest } from '$lib/schemas/design';
 
+/** Designs the controller by pole placement; 400 `{ error, field }` when the body is invalid or the target unreachable. */
 export const POST: RequestHandler = async ({ request }) => {
 	let body: unknown;
 	try {

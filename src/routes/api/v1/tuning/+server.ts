@@ -9,6 +9,7 @@ import type { RequestHandler } from './$types';
 import { tune, TuningError } from '$lib/control/tuning';
 import { parseTuningRequest } from '$lib/schemas/tuning';
 
+/** Applies the requested tuning rule; 400 `{ error, field }` when the body is invalid or the rule does not apply. */
 export const POST: RequestHandler = async ({ request }) => {
 	let body: unknown;
 	try {
