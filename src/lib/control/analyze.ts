@@ -1,0 +1,216 @@
+/**
+ * `analyze(request)`: the analysis contract of PRODUCT.md ("Analysis API contract"), shared by
+ * POST /api/v1/analysis and the bench. Seconds, rad/s, degrees. The response never contains NaN
+ * or Infinity: a value that does not exist is null, with its reason in `reasons` (keyed by the
+ * dotted response path).
+ */
+import type { Complex, ControllerSettings } from './types';
+import { controllerTerms } from './controller';
+import { AnalysisInputError } from './errors';
+import { analyzeLoop } from './loop-analysis';
+import { recognisePlant, type PlantStructure } from './plants';
+import { robustnessEnvelope, type RobustnessEnvelope, type UncertaintySpec } from './robustness';
+import { sweepPoles, type SweepResult, type SweepSpec } from './sweep';
+import { makeTransferFunction, tfIsProper } from './transfer-function';
+import type { DisturbanceMetrics } from './metrics';
+import type { GainCrossing, PhaseCrossing } from './frequency';
+
+/** Request of `analyze` (PRODUCT.md contract plus the optional `uncertainty` and `sweep`). */
+export interface AnalysisRequest {
+	plant: { num: number[]; den: number[]; delay?: number };
+	controller: ControllerSettings;
+	options?: {
+		tEnd?: number;
+		points?: number;
+		settlingBand?: number;
+		padeOrder?: number;
+		bodePoints?: number;
+	};
+	uncertainty?: UncertaintySpec;
+	sweep?: SweepSpec;
+}
+
+/** Response of `analyze` (PRODUCT.md contract plus documented extras). */
+export interface AnalysisResponse {
+	closedLoop: {
+		num: number[];
+		den: number[];
+		poles: Complex[];
+		zeros: Complex[];
+		stable: boolean;
+		/** 'pade' when the dead time was replaced by its Padé approximant for poles/zeros/stability. */
+		approximation: 'exact' | 'pade';
+		padeOrder: number | null;
+		routh: { rhpCount: number; zeroRow: boolean; agrees: boolean };
+		instability: string | null;
+	};
+	step: { t: number[]; y: number[]; u: number[] };
+	stepInfo: {
+		riseTime: number | null;
+		peak: number | null;
+		peakTime: number | null;
+		overshootPercent: number | null;
+		undershootPercent: number | null;
+		settlingTime: number | null;
+		settlingBand: number;
+		finalValue: number | null;
+		steadyStateError: number | null;
+		iae: number | null;
+		ise: number | null;
+		itae: number | null;
+		peakMv: number | null;
+		peakMvTime: number | null;
+	};
+	margins: {
+		gainMargin: number | null;
+		gainMarginDb: number | null;
+		phaseCrossover: number | null;
+		phaseMargin: number | null;
+		gainCrossover: number | null;
+		delayMargin: number | null;
+		ms: number | null;
+		msFrequency: number | null;
+		phaseCrossings: PhaseCrossing[];
+		gainCrossings: GainCrossing[];
+	};
+	dominant: { zeta: number; wn: number; wd: number } | null;
+	disturbance: { t: number[]; y: number[]; u: number[]; info: DisturbanceMetrics };
+	bode: { w: number[]; magDb: number[]; phaseDeg: number[] };
+	errorConstants: { systemType: number; kp: number | null; kv: number | null; ka: number | null };
+	steadyState: { step: number | null; ramp: number | null; parabola: number | null };
+	simulation: { tEnd: number; points: number; internalStep: number; substeps: number; method: string; truncatedAt: number | null };
+	plantStructure: PlantStructure;
+	robustness?: RobustnessEnvelope;
+	sweep?: SweepResult;
+	warnings: string[];
+	reasons: Record<string, string>;
+}
+
+const toArray = (a: ArrayLike<number>) => Array.from(a);
+
+/**
+ * Analyses a plant num/den·e^(−delay·s) under a P/PI/PD/PID controller: closed loop (Padé for
+ * poles and stability of delayed loops), set-point and load step responses with exact dead time,
+ * step metrics, Bode data, margins, Ms, error constants; optionally the robustness envelope and
+ * a pole sweep. Throws AnalysisInputError (with the request field) for invalid input; validate
+ * with the zod schema in src/lib/schemas/analysis.ts first to get all structural errors.
+ */
+export function analyze(request: AnalysisRequest): AnalysisResponse {
+	if (!request || typeof request !== 'object') throw new AnalysisInputError('', 'The request must be an object.');
+	if (!request.plant || typeof request.plant !== 'object') throw new AnalysisInputError('plant', 'The plant is required.');
+	const plant = makeTransferFunction(request.plant.num, request.plant.den, request.plant.delay ?? 0, 'plant');
+	if (plant.num.length === 0) throw new AnalysisInputError('plant.num', 'The numerator is zero: the plant has no effect.');
+	if (!tfIsProper(plant)) throw new AnalysisInputError('plant.num', 'The plant is improper (numerator degree above denominator degree).');
+	if (plant.den.length - 1 > 20) throw new AnalysisInputError('plant.den', 'The plant order is above 20.');
+	const terms = controllerTerms(request.controller, 'controller');
+	const o = request.options ?? {};
+	const band = o.settlingBand ?? 0.02;
+	const a = analyzeLoop(plant, terms, {
+		tEnd: o.tEnd,
+		points: o.points ?? 2000,
+		settlingBand: band,
+		padeOrder: o.padeOrder,
+		bodePoints: o.bodePoints ?? 400
+	});
+	const reasons: Record<string, string> = {};
+	for (const [k, v] of Object.entries(a.stepReasons)) reasons[`stepInfo.${k}`] = v;
+	for (const [k, v] of Object.entries(a.disturbanceReasons)) reasons[`disturbance.info.${k}`] = v;
+	for (const [k, v] of Object.entries(a.margins.reasons)) reasons[`margins.${k}`] = v;
+	const ec = a.errorConstants;
+	if (ec.kp === null) reasons['errorConstants.kp'] = 'infinite: the loop has at least one free integrator (type ≥ 1)';
+	if (ec.kv === null) reasons['errorConstants.kv'] = 'infinite: the loop is of type ≥ 2';
+	if (ec.ka === null) reasons['errorConstants.ka'] = 'infinite: the loop is of type ≥ 3';
+	const ss = a.steadyState ?? { step: null, ramp: null, parabola: null };
+	for (const k of ['step', 'ramp', 'parabola'] as const) {
+		if (ss[k] !== null) continue;
+		reasons[`steadyState.${k}`] = a.steadyState ? `the error to a ${k} grows without bound (loop type too low)` : 'the closed loop is unstable: the final value theorem does not apply';
+	}
+	if (!a.closedLoop.dominant) reasons.dominant = 'The dominant (rightmost) closed-loop pole is real, or there are no poles.';
+	const sim = a.simulation;
+	const plantStructure = recognisePlant(plant);
+	const response: AnalysisResponse = {
+		closedLoop: {
+			num: a.closedLoop.num,
+			den: a.closedLoop.den,
+			poles: a.closedLoop.poles,
+			zeros: a.closedLoop.zeros,
+			stable: a.closedLoop.stable,
+			approximation: a.closedLoop.approximation,
+			padeOrder: a.closedLoop.padeOrder,
+			routh: a.closedLoop.routh,
+			instability: a.closedLoop.instability
+		},
+		step: { t: toArray(sim.t), y: toArray(sim.setpoint.y), u: toArray(sim.setpoint.u) },
+		stepInfo: { ...a.step, settlingBand: band },
+		margins: {
+			gainMargin: a.margins.gainMargin,
+			gainMarginDb: a.margins.gainMarginDb,
+			phaseCrossover: a.margins.phaseCrossover,
+			phaseMargin: a.margins.phaseMargin,
+			gainCrossover: a.margins.gainCrossover,
+			delayMargin: a.margins.delayMargin,
+			ms: a.margins.ms,
+			msFrequency: a.margins.msFrequency,
+			phaseCrossings: a.margins.phaseCrossings,
+			gainCrossings: a.margins.gainCrossings
+		},
+		dominant: a.closedLoop.dominant,
+		disturbance: { t: toArray(sim.t), y: toArray(sim.disturbance.y), u: toArray(sim.disturbance.u), info: a.disturbance },
+		bode: a.bode ?? { w: [], magDb: [], phaseDeg: [] },
+		errorConstants: ec,
+		steadyState: ss,
+		simulation: {
+			tEnd: a.tEnd,
+			points: sim.t.length,
+			internalStep: sim.h,
+			substeps: sim.substeps,
+			method: sim.method,
+			truncatedAt: sim.truncatedAt
+		},
+		plantStructure,
+		warnings: a.warnings,
+		reasons
+	};
+	if (request.uncertainty) {
+		response.robustness = robustnessEnvelope(plantStructure, request.controller, request.uncertainty, {
+			tEnd: a.tEnd,
+			points: o.points ?? 2000,
+			settlingBand: band,
+			padeOrder: o.padeOrder
+		});
+	}
+	if (request.sweep) response.sweep = sweepPoles(plant, request.controller, request.sweep, o.padeOrder);
+	return sanitize(response);
+}
+
+/**
+ * Replaces any non-finite number left anywhere in the response by null and records it (a
+ * safety net: the engine is meant never to produce one; the fuzz test checks that this note
+ * never appears).
+ */
+function sanitize(r: AnalysisResponse): AnalysisResponse {
+	const found: string[] = [];
+	const walk = (v: unknown, path: string): unknown => {
+		if (typeof v === 'number') {
+			if (Number.isFinite(v)) return v;
+			found.push(path);
+			return null;
+		}
+		if (Array.isArray(v)) {
+			for (let i = 0; i < v.length; i++) v[i] = walk(v[i], `${path}[${i}]`);
+			return v;
+		}
+		if (v && typeof v === 'object') {
+			const o = v as Record<string, unknown>;
+			for (const k of Object.keys(o)) o[k] = walk(o[k], path ? `${path}.${k}` : k);
+			return o;
+		}
+		return v;
+	};
+	walk(r, '');
+	if (found.length) {
+		r.warnings.push(`Internal: ${found.length} non-finite value(s) replaced by null (first at ${found[0]}).`);
+		for (const p of found.slice(0, 20)) r.reasons[p] = 'not finite (numerical overflow)';
+	}
+	return r;
+}

@@ -1,0 +1,396 @@
+/**
+ * Frequency response of a loop L(s) = k·Π(s − zᵢ)/Π(s − pᵢ)·e^(−θs) (rad/s, dB, degrees):
+ * Bode magnitude and continuous (unwrapped) phase with the exact delay phase −ωθ, an automatic
+ * log-spaced grid, gain and phase margins with all crossings, delay margin and the maximum
+ * sensitivity Ms = max|1/(1 + L(jω))|.
+ *
+ * Magnitude and phase are sums over the factors (jω − r): the phase of each factor is continuous
+ * in ω, so the total phase needs no unwrapping and no overflow can occur at high order.
+ */
+import type { Complex } from './types';
+import { polyTrailingZeros, polyTrim } from './polynomial';
+import { roots } from './roots';
+import { brentMinimize, brentRoot } from './solvers';
+
+/** A loop in factored form, ready for fast evaluation on the imaginary axis. */
+export interface LoopModel {
+	gain: number;
+	zeros: Complex[];
+	poles: Complex[];
+	delay: number;
+	/** deg den − deg num. */
+	relativeDegree: number;
+	/** Free integrators minus zeros at the origin. */
+	systemType: number;
+	/** Constant 2πk added to the phase so the low-frequency phase lies in (−315°, 45°]. */
+	phaseOffset: number;
+	/** Characteristic frequencies (rad/s): |r| of non-zero roots, 1/θ, or the crossover estimate. */
+	corners: number[];
+	zr: Float64Array;
+	zi: Float64Array;
+	pr: Float64Array;
+	pi: Float64Array;
+}
+
+/** Factored loop model of num/den·e^(−delay·s) (num, den not zero). */
+export function loopModel(num: readonly number[], den: readonly number[], delay = 0): LoopModel {
+	const n = polyTrim(num);
+	const d = polyTrim(den);
+	if (n.length === 0 || d.length === 0) throw new Error('loopModel: zero numerator or denominator');
+	const zeros = roots(n);
+	const poles = roots(d);
+	const gain = n[0] / d[0];
+	const corners: number[] = [];
+	for (const r of [...zeros, ...poles]) {
+		const m = Math.hypot(r.re, r.im);
+		if (m > 0) corners.push(m);
+	}
+	if (delay > 0) corners.push(1 / delay);
+	const relativeDegree = d.length - n.length;
+	if (corners.length === 0) corners.push(relativeDegree > 0 ? Math.pow(Math.abs(gain), 1 / relativeDegree) : 1);
+	const model: LoopModel = {
+		gain,
+		zeros,
+		poles,
+		delay,
+		relativeDegree,
+		systemType: polyTrailingZeros(d) - polyTrailingZeros(n),
+		phaseOffset: 0,
+		corners,
+		zr: Float64Array.from(zeros.map((z) => z.re)),
+		zi: Float64Array.from(zeros.map((z) => z.im)),
+		pr: Float64Array.from(poles.map((z) => z.re)),
+		pi: Float64Array.from(poles.map((z) => z.im))
+	};
+	const wLow = Math.min(...corners) * 1e-3;
+	const raw = loopPhase(model, wLow);
+	const k = Math.ceil((raw - Math.PI / 4) / (2 * Math.PI));
+	model.phaseOffset = -2 * Math.PI * k;
+	return model;
+}
+
+/** Natural log of |L(jω)|, clamped to ±700 (a root exactly on the axis gives the clamp). */
+export function loopLogMagnitude(m: LoopModel, w: number): number {
+	let acc = Math.log(Math.abs(m.gain));
+	const { zr, zi, pr, pi } = m;
+	for (let i = 0; i < zr.length; i++) {
+		const a = w - zi[i];
+		acc += 0.5 * Math.log(a * a + zr[i] * zr[i]);
+	}
+	for (let i = 0; i < pr.length; i++) {
+		const a = w - pi[i];
+		acc -= 0.5 * Math.log(a * a + pr[i] * pr[i]);
+	}
+	if (!(acc < 700)) return acc > 0 || Number.isNaN(acc) ? 700 : -700;
+	if (!(acc > -700)) return -700;
+	return acc;
+}
+
+/** Continuous phase of L(jω) in radians, including −ωθ and the model's 2πk offset. */
+export function loopPhase(m: LoopModel, w: number): number {
+	let acc = m.gain < 0 ? Math.PI : 0;
+	const { zr, zi, pr, pi } = m;
+	for (let i = 0; i < zr.length; i++) acc += Math.atan2(w - zi[i], -zr[i]);
+	for (let i = 0; i < pr.length; i++) acc -= Math.atan2(w - pi[i], -pr[i]);
+	return acc - w * m.delay + m.phaseOffset;
+}
+
+/** L(jω) as a complex number (magnitude clamped to e^±300 to stay finite). */
+export function loopValue(m: LoopModel, w: number): Complex {
+	const lm = Math.max(-300, Math.min(300, loopLogMagnitude(m, w)));
+	const ph = loopPhase(m, w);
+	const mag = Math.exp(lm);
+	return { re: mag * Math.cos(ph), im: mag * Math.sin(ph) };
+}
+
+/** Options of the automatic frequency grid. */
+export interface GridOptions {
+	points?: number;
+	wMin?: number;
+	wMax?: number;
+}
+
+/**
+ * Frequency band (rad/s) of the automatic grid: from two decades below the lowest corner
+ * (|roots|, 1/θ) to two decades above the highest root corner and one above 1/θ, extended
+ * upwards until |L| < 0.5 for strictly proper loops so every gain crossover lies inside.
+ */
+export function frequencyRange(m: LoopModel, opts: GridOptions = {}): { wMin: number; wMax: number } {
+	// Root corners get two decades of margin; the dead-time corner 1/θ one decade (beyond it the
+	// delay only adds phase crossings with ever larger gain margins).
+	const rootCorners = m.corners.filter((c) => !(m.delay > 0 && c === 1 / m.delay));
+	const top = Math.max(
+		rootCorners.length ? Math.pow(10, Math.ceil(Math.log10(Math.max(...rootCorners))) + 2) : 0,
+		m.delay > 0 ? Math.pow(10, Math.ceil(Math.log10(1 / m.delay)) + 1) : 0
+	);
+	let wMin = opts.wMin ?? Math.pow(10, Math.floor(Math.log10(Math.min(...m.corners))) - 2);
+	let wMax = opts.wMax ?? top;
+	if (opts.wMax === undefined && m.relativeDegree > 0) {
+		for (let i = 0; i < 8 && loopLogMagnitude(m, wMax) > Math.log(0.5); i++) wMax *= 10;
+	}
+	if (opts.wMin === undefined && m.systemType < 0) {
+		for (let i = 0; i < 8 && loopLogMagnitude(m, wMin) > Math.log(0.5); i++) wMin /= 10;
+	}
+	if (!(wMax > wMin)) wMax = wMin * 1e4;
+	return { wMin, wMax };
+}
+
+/** `points` log-spaced frequencies between wMin and wMax inclusive. */
+export function logspace(wMin: number, wMax: number, points: number): Float64Array {
+	const out = new Float64Array(points);
+	const a = Math.log(wMin);
+	const b = Math.log(wMax);
+	for (let i = 0; i < points; i++) out[i] = Math.exp(a + ((b - a) * i) / Math.max(1, points - 1));
+	return out;
+}
+
+/**
+ * The analysis grid: the display grid plus points packed around lightly damped roots
+ * (|Re r| < 0.3·|r|), spaced |Re r|/2 near ω = |Im r|, so no crossing pair or resonance peak
+ * falls between two grid points.
+ */
+export function analysisGrid(m: LoopModel, display: Float64Array): Float64Array {
+	const extra: number[] = [];
+	const lo = display[0];
+	const hi = display[display.length - 1];
+	const consider = (re: number, im: number) => {
+		if (im <= 0) return;
+		const mag = Math.hypot(re, im);
+		if (Math.abs(re) >= 0.3 * mag) return;
+		const step = Math.max(Math.abs(re) / 2, 1e-6 * im);
+		for (let k = -8; k <= 8; k++) {
+			const w = im + k * step;
+			if (w > lo && w < hi) extra.push(w);
+		}
+	};
+	for (const z of m.zeros) consider(z.re, z.im);
+	for (const p of m.poles) consider(p.re, p.im);
+	if (extra.length === 0) return display;
+	const all = Float64Array.from([...display, ...extra]);
+	all.sort();
+	return all;
+}
+
+/** Bode data: ω (rad/s), |L| in dB, continuous phase in degrees. */
+export interface BodeData {
+	w: number[];
+	magDb: number[];
+	phaseDeg: number[];
+}
+
+/** Bode magnitude (dB) and phase (degrees, unwrapped, exact delay phase) on the grid w. */
+export function bode(m: LoopModel, w: ArrayLike<number>): BodeData {
+	const out: BodeData = { w: [], magDb: [], phaseDeg: [] };
+	const toDb = 20 / Math.LN10;
+	for (let i = 0; i < w.length; i++) {
+		out.w.push(w[i]);
+		out.magDb.push(toDb * loopLogMagnitude(m, w[i]));
+		out.phaseDeg.push((180 / Math.PI) * loopPhase(m, w[i]));
+	}
+	return out;
+}
+
+/** A phase crossover (∠L = −180° mod 360°) and the gain margin there. */
+export interface PhaseCrossing {
+	w: number;
+	gainMargin: number;
+	gainMarginDb: number;
+}
+
+/** A gain crossover (|L| = 1) and the phase margin there (degrees, in (−180, 180]). */
+export interface GainCrossing {
+	w: number;
+	phaseMargin: number;
+}
+
+/** Stability margins; nulls carry a reason in `reasons` keyed by field name. */
+export interface Margins {
+	gainMargin: number | null;
+	gainMarginDb: number | null;
+	phaseCrossover: number | null;
+	phaseMargin: number | null;
+	gainCrossover: number | null;
+	delayMargin: number | null;
+	ms: number | null;
+	msFrequency: number | null;
+	phaseCrossings: PhaseCrossing[];
+	gainCrossings: GainCrossing[];
+	reasons: Record<string, string>;
+}
+
+const wrapPi = (x: number) => {
+	let y = x % (2 * Math.PI);
+	if (y <= -Math.PI) y += 2 * Math.PI;
+	if (y > Math.PI) y -= 2 * Math.PI;
+	return y;
+};
+
+/**
+ * All phase crossovers (∠L(jω) = −180° mod 360°) and gain crossovers (|L(jω)| = 1) on the
+ * analysis grid, each bracketed on the grid and refined by Brent's method in log ω.
+ */
+export function findCrossings(m: LoopModel, grid: ArrayLike<number>): { phase: PhaseCrossing[]; gain: GainCrossing[] } {
+	const n = grid.length;
+	const lm = new Float64Array(n);
+	const ph = new Float64Array(n);
+	for (let i = 0; i < n; i++) {
+		lm[i] = loopLogMagnitude(m, grid[i]);
+		ph[i] = loopPhase(m, grid[i]);
+	}
+	const phase: PhaseCrossing[] = [];
+	const gain: GainCrossing[] = [];
+	const toDb = 20 / Math.LN10;
+	for (let i = 0; i < n - 1; i++) {
+		const a = Math.log(grid[i]);
+		const b = Math.log(grid[i + 1]);
+		// Gain crossover: log|L| changes sign.
+		if ((lm[i] > 0) !== (lm[i + 1] > 0) && lm[i] !== lm[i + 1]) {
+			const x = brentRoot((x) => loopLogMagnitude(m, Math.exp(x)), a, b, 1e-14);
+			if (x !== null) {
+				const w = Math.exp(x);
+				gain.push({ w, phaseMargin: (180 / Math.PI) * wrapPi(loopPhase(m, w) + Math.PI) });
+			}
+		}
+		// Phase crossover: (φ + π)/2π passes an integer.
+		const u0 = (ph[i] + Math.PI) / (2 * Math.PI);
+		const u1 = (ph[i + 1] + Math.PI) / (2 * Math.PI);
+		const lo = Math.min(u0, u1);
+		const hi = Math.max(u0, u1);
+		for (let k = Math.floor(lo) + 1; k <= Math.floor(hi); k++) {
+			if (k === lo) continue;
+			const target = 2 * Math.PI * k - Math.PI;
+			const x = brentRoot((x) => loopPhase(m, Math.exp(x)) - target, a, b, 1e-14);
+			if (x === null) continue;
+			const w = Math.exp(x);
+			// A jump of the phase (a root on the imaginary axis) is not a crossing.
+			if (Math.abs(loopPhase(m, w) - target) > 1e-6) continue;
+			const l = loopLogMagnitude(m, w);
+			if (Math.abs(l) >= 700) continue;
+			phase.push({ w, gainMargin: Math.exp(-l), gainMarginDb: -toDb * l });
+		}
+	}
+	return { phase, gain };
+}
+
+/**
+ * Maximum sensitivity Ms = max over ω ≥ 0 of 1/|1 + L(jω)| (the inverse distance of the Nyquist
+ * curve to −1; Åström & Murray, Feedback Systems, 2nd ed., §12.5, from memory), from every local
+ * minimum of |1 + L| on the grid refined by Brent's minimiser, and the limits ω → 0 and ω → ∞.
+ * Returns ms null when the curve passes through −1.
+ */
+export function maxSensitivity(m: LoopModel, grid: ArrayLike<number>): { ms: number | null; w: number | null; reason?: string } {
+	const n = grid.length;
+	const dist = (w: number) => {
+		const l = loopValue(m, w);
+		return Math.hypot(1 + l.re, l.im);
+	};
+	const f = new Float64Array(n);
+	for (let i = 0; i < n; i++) f[i] = dist(grid[i]);
+	let best = Infinity;
+	let bestW: number | null = null;
+	for (let i = 0; i < n; i++) {
+		const left = i > 0 ? f[i - 1] : Infinity;
+		const right = i < n - 1 ? f[i + 1] : Infinity;
+		if (f[i] <= left && f[i] <= right) {
+			let w = grid[i];
+			let v = f[i];
+			if (i > 0 && i < n - 1) {
+				const r = brentMinimize((x) => dist(Math.exp(x)), Math.log(grid[i - 1]), Math.log(grid[i + 1]));
+				if (r.fx < v) {
+					v = r.fx;
+					w = Math.exp(r.x);
+				}
+			}
+			if (v < best) {
+				best = v;
+				bestW = w;
+			}
+		}
+	}
+	// Limits outside the grid.
+	let reason: string | undefined;
+	const originRoot = [...m.zeros, ...m.poles].some((r) => r.re === 0 && r.im === 0);
+	if (m.systemType === 0 && !originRoot) {
+		const l0 = loopValue(m, 0);
+		const d0 = Math.hypot(1 + l0.re, l0.im);
+		if (d0 < best) {
+			best = d0;
+			bestW = 0;
+		}
+	}
+	if (m.relativeDegree === 0) {
+		const g = Math.abs(m.gain);
+		const dInf = m.delay > 0 ? Math.abs(1 - g) : Math.abs(1 + m.gain);
+		if (dInf < best) {
+			best = dInf;
+			bestW = null;
+			reason = 'The supremum is approached as ω → ∞ (the loop has direct feedthrough).';
+		}
+	}
+	if (!(best > 1e-12)) return { ms: null, w: null, reason: 'The Nyquist curve passes through −1 (|1 + L| = 0): the sensitivity is unbounded.' };
+	return { ms: 1 / best, w: bestW, reason };
+}
+
+/**
+ * Gain margin, phase margin, their crossover frequencies, the delay margin and Ms of the loop.
+ * Choice among several crossings (as python-control `stability_margins`): the gain margin
+ * closest to 1 in log sense (min |log GM|), the phase margin of smallest |PM|. Delay margin =
+ * min over gain crossovers with PM > 0 of PM[rad]/ω. No phase crossover → GM null ("no phase
+ * crossover"); no gain crossover → PM null. PM is wrapped into (−180°, 180°].
+ */
+export function stabilityMargins(m: LoopModel, grid: ArrayLike<number>): Margins {
+	const { phase, gain } = findCrossings(m, grid);
+	const reasons: Record<string, string> = {};
+	const out: Margins = {
+		gainMargin: null,
+		gainMarginDb: null,
+		phaseCrossover: null,
+		phaseMargin: null,
+		gainCrossover: null,
+		delayMargin: null,
+		ms: null,
+		msFrequency: null,
+		phaseCrossings: phase,
+		gainCrossings: gain,
+		reasons
+	};
+	if (phase.length > 0) {
+		let best = phase[0];
+		for (const p of phase) if (Math.abs(p.gainMarginDb) < Math.abs(best.gainMarginDb)) best = p;
+		out.gainMargin = best.gainMargin;
+		out.gainMarginDb = best.gainMarginDb;
+		out.phaseCrossover = best.w;
+	} else {
+		reasons.gainMargin = 'no phase crossover: the phase never reaches −180° in the analysed band, so the gain margin is infinite';
+		reasons.gainMarginDb = reasons.gainMargin;
+		reasons.phaseCrossover = 'no phase crossover';
+	}
+	if (gain.length > 0) {
+		let best = gain[0];
+		for (const g of gain) if (Math.abs(g.phaseMargin) < Math.abs(best.phaseMargin)) best = g;
+		out.phaseMargin = best.phaseMargin;
+		out.gainCrossover = best.w;
+		let dm = Infinity;
+		let negative = false;
+		for (const g of gain) {
+			if (g.phaseMargin <= 0) negative = true;
+			else dm = Math.min(dm, ((g.phaseMargin * Math.PI) / 180) / g.w);
+		}
+		if (negative) reasons.delayMargin = 'a gain crossover has no positive phase margin';
+		else out.delayMargin = dm;
+	} else {
+		const above = loopLogMagnitude(m, grid[0]) > 0;
+		const why = above ? 'no gain crossover: |L| stays above 1 in the analysed band' : 'no gain crossover: |L| < 1 at all analysed frequencies';
+		reasons.phaseMargin = why;
+		reasons.gainCrossover = why;
+		reasons.delayMargin = above ? why : 'infinite: with |L| < 1 everywhere no dead time can destabilise the loop';
+	}
+	const ms = maxSensitivity(m, grid);
+	out.ms = ms.ms;
+	out.msFrequency = ms.w;
+	if (ms.ms === null) {
+		reasons.ms = ms.reason ?? 'unbounded';
+		reasons.msFrequency = reasons.ms;
+	} else if (ms.w === null) reasons.msFrequency = ms.reason ?? 'at infinite frequency';
+	return out;
+}
