@@ -31,6 +31,8 @@ export default defineConfig({
 				test: {
 					name: 'browser',
 					include: ['tests/browser/**/*.spec.ts'],
+					// Vitest sets BASE_URL to Vite's base ('/') inside tests: keep the server's address.
+					env: { BASE_URL: process.env.BASE_URL ?? '' },
 					environment: 'node',
 					fileParallelism: false,
 					testTimeout: 60_000,
