@@ -121,6 +121,13 @@ const guards: Handle = async ({ event, resolve }) => {
 		return resolve(event);
 	}
 
+	// SvelteKit refuses cross-site form posts in production builds; refuse them here too (also in
+	// development), whatever the route.
+	const origin = event.request.headers.get('origin');
+	if (UNSAFE.has(event.request.method) && origin && origin !== event.url.origin) {
+		return new Response('Cross-site form submissions are refused.', { status: 403, headers: { 'Content-Type': 'text/plain; charset=utf-8' } });
+	}
+
 	if (routeId.startsWith('/(app)')) {
 		if (!user) {
 			const back = event.url.pathname + event.url.search;

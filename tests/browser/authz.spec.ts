@@ -6,7 +6,7 @@
  *
  * Routes are discovered from src/routes (+page.svelte, +page.server.ts, +server.ts); a route
  * missing from TABLE fails the test, so whoever adds a route must state who may use it.
- * Expected statuses: 200 page shown; 303 redirect (signed out → /signin); 401 API without
+ * Expected statuses: 200 page shown; 303/307 redirect (signed out → /signin); 401 API without
  * credentials; 403 refused; 400/422 allowed in but the (deliberately incomplete) input refused;
  * 'ok' = any 2xx; 'in' = allowed past authorisation (not 401/403, below 500).
  */
@@ -43,10 +43,11 @@ const api = (s: Expect): Expected => signedIn(s, 401);
 
 /** Route id (as SvelteKit names it) → the requests to try. */
 const TABLE: Record<string, Case[]> = {
-	'/': [{ method: 'GET', path: '/', expect: everyone(303) }],
+	'/': [{ method: 'GET', path: '/', expect: everyone(307) }],
 	'/(auth)/signin': [
 		{ method: 'GET', path: '/signin', expect: { ...everyone(303), signedOut: 200 } },
-		{ method: 'POST', path: '/signin', form: { email: '', password: '' }, expect: { ...everyone(400) } }
+		// Signed in, the page's load sends the person on to the register after the refused attempt.
+		{ method: 'POST', path: '/signin', form: { email: '', password: '' }, expect: { ...everyone(303), signedOut: 400 } }
 	],
 	'/(auth)/signout': [{ method: 'GET', path: '/signout', expect: { ...everyone(200), signedOut: 303 } }],
 	'/(app)/register': [{ method: 'GET', path: '/register', expect: signedIn(200), signedOutTo: '/signin?redirectTo=%2Fregister' }],
@@ -207,7 +208,8 @@ describe('expected status per role', () => {
 		for (const c of TABLE[id] ?? []) {
 			for (const who of WHO) {
 				it(`${c.method} ${c.path} as ${who} → ${c.expect[who]}`, async () => {
-					const res = await request(who, { ...c, path: fill(c.path) });
+					const form = c.form ? Object.fromEntries(Object.entries(c.form).map(([k, v]) => [k, fill(v)])) : undefined;
+					const res = await request(who, { ...c, form, path: fill(c.path) });
 					expect(matches(res.status, c.expect[who]), `${c.method} ${c.path} as ${who}: got ${res.status}`).toBe(true);
 					if (who === 'signedOut' && res.status === 303 && id.startsWith('/(app)')) {
 						expect(res.headers.get('location')).toMatch(/^\/signin\?redirectTo=/);
