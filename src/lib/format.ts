@@ -267,8 +267,8 @@ function delayTex(thetaSeconds: number | null | undefined, unit: TimeUnit, sig: 
 	return th > 0 ? `\\,e^{-${texNumber(th, sig)}\\,s}` : '';
 }
 
-function finite(...xs: Array<number | null | undefined>): xs is number[] {
-	return xs.every((x) => typeof x === 'number' && Number.isFinite(x));
+function finite(x: number | null | undefined): x is number {
+	return typeof x === 'number' && Number.isFinite(x);
 }
 
 /** The symbolic form of each structure, as TeX (letters only). */
@@ -312,10 +312,10 @@ export function numericTransferFunctionTex(
 	const p = model.parameters ?? {};
 	const delay = delayTex(model.delaySeconds, unit, sig);
 	const t = (x: number) => texNumber(secondsTo(x, unit) as number, sig);
-	if (model.structure === 'fopdt' && finite(p.k, p.tau)) {
+	if (model.structure === 'fopdt' && finite(p.k) && finite(p.tau)) {
 		return String.raw`G(s) = \dfrac{${texNumber(p.k, sig)}}{${t(p.tau)}\,s + 1}${delay}`;
 	}
-	if (model.structure === 'sopdt' && finite(p.k, p.tau, p.tau2)) {
+	if (model.structure === 'sopdt' && finite(p.k) && finite(p.tau) && finite(p.tau2)) {
 		return String.raw`G(s) = \dfrac{${texNumber(p.k, sig)}}{(${t(p.tau)}\,s + 1)(${t(p.tau2)}\,s + 1)}${delay}`;
 	}
 	if (model.structure === 'ipdt' && finite(p.k)) {
