@@ -11,15 +11,37 @@ function acting(event: RequestEvent): Acting {
 	return { user: event.locals.user, ip: clientAddressOf(event) };
 }
 
+const ACTION_WORDS: Record<string, string> = {
+	'user.create': 'added',
+	'user.role_change': 'role changed',
+	'user.deactivate': 'deactivated',
+	'user.reactivate': 'reactivated',
+	'user.password_reset': 'new one-time password',
+	'user.password_change': 'changed own password',
+	'user.profile_update': 'changed own name'
+};
+
+/** A short plain-words line for one audited change to a person (no secrets are ever in the log). */
+function describeChange(action: string, before: unknown, after: unknown): string {
+	const b = (before ?? {}) as Record<string, unknown>;
+	const a = (after ?? {}) as Record<string, unknown>;
+	const words = ACTION_WORDS[action] ?? action;
+	if (action === 'user.role_change') return `${words}: ${String(b.role)} → ${String(a.role)}`;
+	if (action === 'user.create') return `${words} as ${String(a.role)}`;
+	return words;
+}
+
 export const load = (async (event) => {
 	try {
 		const users = await listUsers(acting(event));
+		const names = new Map(users.map((u) => [String(u.id), u.name]));
 		const changes = (await recentAudit(15, 'user.')).map((a) => ({
 			id: a.id,
 			at: a.at,
 			actorEmail: a.actorEmail,
 			action: a.action,
-			entityId: a.entityId
+			subject: (a.entityId && names.get(a.entityId)) ?? `user #${a.entityId ?? '?'}`,
+			detail: describeChange(a.action, a.before, a.after)
 		}));
 		return { users, changes, me: event.locals.user!.id };
 	} catch (e) {
