@@ -9,7 +9,7 @@ import { sequelize } from '../../src/lib/server/db/connection';
 import { MIGRATIONS, migrateUp, migrator } from '../../src/lib/server/db/migrator';
 import { closeTestDatabase, dropAllTables, migrateAllDown, tableNames, useTestDatabaseEnv } from '../helpers/db';
 
-/** Tables the initial migration creates (0001-initial). */
+/** Tables the initial migration creates (0001-initial); later migrations may add more. */
 const SCHEMA_TABLES = [
 	'api_tokens',
 	'areas',
@@ -63,6 +63,7 @@ async function insertAsset(siteId: number, areaId: number, tag: string): Promise
 }
 
 describe('migrations', () => {
+	let tablesAfterUp: string[] = [];
 	beforeAll(async () => {
 		useTestDatabaseEnv();
 		await dropAllTables();
@@ -81,7 +82,8 @@ describe('migrations', () => {
 		const tables = await tableNames();
 		for (const t of SCHEMA_TABLES) expect(tables).toContain(t);
 		expect(tables).toContain('schema_migrations');
-		expect(await triggerNames()).toEqual(['audit_events_no_delete', 'audit_events_no_update']);
+		tablesAfterUp = tables;
+		expect(await triggerNames()).toEqual(expect.arrayContaining(['audit_events_no_delete', 'audit_events_no_update']));
 		expect(await migrator().pending()).toEqual([]);
 	});
 
@@ -96,7 +98,8 @@ describe('migrations', () => {
 	it('apply every migration up again after the full round trip', async () => {
 		const applied = await migrateUp();
 		expect(applied).toEqual(MIGRATIONS.map((m) => m.name));
-		expect((await tableNames()).sort()).toEqual([...SCHEMA_TABLES, 'schema_migrations'].sort());
+		expect(tablesAfterUp.length).toBeGreaterThan(SCHEMA_TABLES.length);
+		expect(await tableNames()).toEqual(tablesAfterUp);
 	});
 
 	describe('constraints of the schema', () => {
