@@ -243,6 +243,14 @@ export async function listRegister(actor: Actor, query: RegisterQuery, scope: Re
 		'pm.id ASC'
 	].join(', ');
 
+	// Two levels in one statement: the inner query filters, sorts and pages on narrow columns only
+	// (so the sort never drags JSON or text through a temporary table); the outer one fetches the
+	// page's rows in full.
+	const joins = `
+		FROM plant_models pm
+		JOIN assets a ON a.id = pm.asset_id
+		JOIN sites s ON s.id = a.site_id
+		JOIN areas ar ON ar.id = a.area_id`;
 	const sql = `
 		SELECT pm.id, pm.title, pm.status,
 			a.id AS asset_id, a.tag, a.name AS asset_name, a.kind,
@@ -255,16 +263,22 @@ export async function listRegister(actor: Actor, query: RegisterQuery, scope: Re
 			${STATE_EXPR} AS register_state,
 			${IN_REVIEW_EXPR} AS in_review,
 			(pm.status <> 'withdrawn' AND r.revalidate_by IS NOT NULL AND r.revalidate_by < :today) AS is_stale,
-			COUNT(*) OVER () AS total
-		FROM plant_models pm
+			pg.total
+		FROM (
+			SELECT pm.id AS model_id, r.id AS shown_revision_id, COUNT(*) OVER () AS total
+			${joins}
+			JOIN model_revisions r ON r.id = COALESCE(pm.approved_revision_id,
+				(SELECT l.id FROM model_revisions l WHERE l.model_id = pm.id ORDER BY l.revision_no DESC LIMIT 1))
+			WHERE ${where.join(' AND ')}
+			ORDER BY ${order}
+			LIMIT :limit OFFSET :offset
+		) pg
+		JOIN plant_models pm ON pm.id = pg.model_id
+		JOIN model_revisions r ON r.id = pg.shown_revision_id
 		JOIN assets a ON a.id = pm.asset_id
 		JOIN sites s ON s.id = a.site_id
 		JOIN areas ar ON ar.id = a.area_id
-		JOIN model_revisions r ON r.id = COALESCE(pm.approved_revision_id,
-			(SELECT l.id FROM model_revisions l WHERE l.model_id = pm.id ORDER BY l.revision_no DESC LIMIT 1))
-		WHERE ${where.join(' AND ')}
-		ORDER BY ${order}
-		LIMIT :limit OFFSET :offset`;
+		ORDER BY ${order}`;
 
 	const run = (page: number) =>
 		sequelize().query<RawRow>(sql, {
