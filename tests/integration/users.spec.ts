@@ -168,6 +168,26 @@ describe('the last active administrator', () => {
 	});
 });
 
+describe('two administrators demoting each other at the same moment', () => {
+	it('one change wins, the other is refused, and an administrator remains', async () => {
+		const a = await person('race-a', 'admin');
+		const b = await person('race-b', 'admin');
+		const others = await User.findAll({ where: { role: 'admin', active: true, id: { [Op.notIn]: [a.id, b.id] } } });
+		const otherIds = others.map((u) => Number(u.id));
+		if (otherIds.length) await User.update({ active: false }, { where: { id: otherIds } });
+		try {
+			const results = await Promise.allSettled([changeRole(as(a), b.id, 'engineer'), changeRole(as(b), a.id, 'engineer')]);
+			expect(results.filter((r) => r.status === 'fulfilled')).toHaveLength(1);
+			const refused = results.find((r) => r.status === 'rejected') as PromiseRejectedResult;
+			expect(refused.reason).toBeInstanceOf(Conflict);
+			expect(await User.count({ where: { id: [a.id, b.id], role: 'admin', active: true } })).toBe(1);
+		} finally {
+			if (otherIds.length) await User.update({ active: true }, { where: { id: otherIds } });
+			await User.update({ role: 'viewer', active: false }, { where: { id: [a.id, b.id] } });
+		}
+	});
+});
+
 describe('each write and its audit event share one transaction', () => {
 	it('a failing audit insert after the update leaves no partial state', async () => {
 		const p = await person('atomic', 'viewer');

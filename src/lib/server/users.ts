@@ -118,16 +118,25 @@ async function lockTarget(tx: Transaction, userId: number): Promise<User> {
 	return u;
 }
 
-/** Refuse when `target` is the only active administrator (rows locked, so two admins cannot demote each other at once). */
-async function assertNotLastAdmin(tx: Transaction, target: User, what: string): Promise<void> {
-	if (target.role !== 'admin' || !target.active) return;
+/**
+ * Lock the rows of every active administrator (always first, in index order, so two admins
+ * changing each other at the same time queue instead of deadlocking) and return their ids.
+ */
+async function lockActiveAdmins(tx: Transaction): Promise<number[]> {
 	const admins = await User.findAll({
 		where: { role: 'admin', active: true },
 		attributes: ['id'],
+		order: [['id', 'ASC']],
 		transaction: tx,
 		lock: tx.LOCK.UPDATE
 	});
-	if (admins.length <= 1) {
+	return admins.map((a) => Number(a.id));
+}
+
+/** Refuse when `target` is the only active administrator. */
+function assertNotLastAdmin(activeAdmins: number[], target: User, what: string): void {
+	if (target.role !== 'admin' || !target.active) return;
+	if (activeAdmins.length <= 1) {
 		throw new Conflict(`${what} would leave no active administrator. Make someone else an administrator first.`);
 	}
 }
@@ -137,9 +146,10 @@ export async function changeRole(acting: Acting, userId: number, role: Role): Pr
 	assertCan(acting.user.role, 'user.manage');
 	initModels();
 	return sequelize().transaction(async (tx) => {
+		const admins = await lockActiveAdmins(tx);
 		const u = await lockTarget(tx, userId);
 		if (u.role === role) return toDto(u);
-		if (role !== 'admin') await assertNotLastAdmin(tx, u, 'Changing this role');
+		if (role !== 'admin') assertNotLastAdmin(admins, u, 'Changing this role');
 		const before = snapshot(u);
 		u.role = role;
 		await u.save({ transaction: tx });
@@ -161,9 +171,10 @@ export async function setActive(acting: Acting, userId: number, active: boolean)
 	assertCan(acting.user.role, 'user.manage');
 	initModels();
 	return sequelize().transaction(async (tx) => {
+		const admins = await lockActiveAdmins(tx);
 		const u = await lockTarget(tx, userId);
 		if (Boolean(u.active) === active) return toDto(u);
-		if (!active) await assertNotLastAdmin(tx, u, 'Deactivating this account');
+		if (!active) assertNotLastAdmin(admins, u, 'Deactivating this account');
 		const before = snapshot(u);
 		u.active = active;
 		await u.save({ transaction: tx });
