@@ -28,6 +28,10 @@ const schema = z.object({
 	MEILISEARCH_KEY: z.string().optional(),
 	SMTP_URL: z.string().optional(),
 	MAIL_FROM: z.string().default('Loopledger <loopledger@localhost>'),
+	/** Port of the local mail catcher on 127.0.0.1 (used when SMTP_URL is empty). */
+	SMTP_CATCHER_PORT: z.coerce.number().int().min(1).max(65535).default(2525),
+	/** The in-process mail worker runs unless this is 0 (e.g. on app servers that should not send). */
+	MAIL_WORKER: z.enum(['0', '1', '']).optional(),
 	SIGNIN_MAX_FAILURES: z.coerce.number().int().min(1).default(5),
 	SIGNIN_LOCK_SECONDS: z.coerce.number().int().min(1).default(300)
 });

@@ -6,6 +6,7 @@ import { Umzug, SequelizeStorage } from 'umzug';
 import type { QueryInterface } from 'sequelize';
 import { sequelize } from './connection';
 import * as m0001 from './migrations/0001-initial';
+import * as m0002 from './migrations/0002-workflow';
 
 type Migration = {
 	name: string;
@@ -13,7 +14,10 @@ type Migration = {
 	down: (p: { context: QueryInterface }) => Promise<void>;
 };
 
-export const MIGRATIONS: Migration[] = [{ name: '0001-initial', up: m0001.up, down: m0001.down }];
+export const MIGRATIONS: Migration[] = [
+	{ name: '0001-initial', up: m0001.up, down: m0001.down },
+	{ name: '0002-workflow', up: m0002.up, down: m0002.down }
+];
 
 /** An umzug instance bound to the shared connection, storing applied names in `schema_migrations`. */
 export function migrator(logger: Console | undefined = undefined): Umzug<QueryInterface> {

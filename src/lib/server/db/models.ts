@@ -13,6 +13,7 @@ import {
 	type Sequelize
 } from 'sequelize';
 import { sequelize } from './connection';
+import { initWorkflowModels } from './models-workflow';
 
 export type Role = 'viewer' | 'engineer' | 'reviewer' | 'admin';
 export type Structure = 'fopdt' | 'sopdt' | 'ipdt' | 'second_order' | 'rational';
@@ -162,6 +163,10 @@ export class ModelRevision extends Model<
 	declare submitted_at: Date | null;
 	declare reviewed_at: Date | null;
 	declare approved_at: Date | null;
+	/** The approved revision this one started from (null for a model's first revision). */
+	declare base_revision_id: CreationOptional<number | null>;
+	/** An unchanged model re-approved with a new revalidate-by date. */
+	declare is_revalidation: CreationOptional<boolean>;
 	declare version: CreationOptional<number>;
 	declare created_at: CreationOptional<Date>;
 	declare updated_at: CreationOptional<Date>;
@@ -397,6 +402,8 @@ export function initModels(): void {
 			submitted_at: { type: DataTypes.DATE(3), allowNull: true },
 			reviewed_at: { type: DataTypes.DATE(3), allowNull: true },
 			approved_at: { type: DataTypes.DATE(3), allowNull: true },
+			base_revision_id: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
+			is_revalidation: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
 			version: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false, defaultValue: 0 },
 			...ts
 		},
@@ -519,5 +526,6 @@ export function initModels(): void {
 	PlantModel.hasMany(Note, { foreignKey: 'model_id', as: 'notes' });
 	PlantModel.hasMany(Attachment, { foreignKey: 'model_id', as: 'attachments' });
 	ApiToken.belongsTo(User, { foreignKey: 'user_id', as: 'user' });
+	initWorkflowModels(s);
 	initialised = true;
 }
