@@ -45,6 +45,8 @@ function withHeaders(response: Response, event: RequestEvent): Response {
 		);
 	}
 	if (isHttpsOrigin(event)) r.headers.set('Strict-Transport-Security', 'max-age=31536000; includeSubDomains');
+	// What a signed-in person sees is theirs: no shared cache may keep it.
+	if (event.locals.user && !r.headers.has('Cache-Control')) r.headers.set('Cache-Control', 'private, no-store');
 	return r;
 }
 

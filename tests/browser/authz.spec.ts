@@ -280,6 +280,7 @@ describe('security headers and cookie flags', () => {
 		expect(csp).toMatch(/style-src 'self' 'unsafe-inline'/);
 		expect(csp).toMatch(/object-src 'none'/);
 		expect(csp).not.toMatch(/unsafe-eval/);
+		expect(res.headers.get('cache-control')).toBe('private, no-store');
 	});
 	it('on redirects, API errors and the sign-in page', async () => {
 		common(await request('signedOut', { method: 'GET', path: '/register' }));
