@@ -330,7 +330,7 @@ export async function start({ env = process.env, fallbackPort = false, quiet = f
 				log(`note: DB_PORT=${env.DB_PORT} asked for, but the running server listens on ${port}; using ${port}`);
 			}
 		} else {
-			if (current.stalePid) log(`removing stale pid file (process ${current.stalePid} is gone)`);
+			if (current.stalePid) log(`removing stale pid file (process ${current.stalePid} is not this working copy's mariadbd)`);
 			port = requestedPort(env);
 			if (await portInUse(port)) {
 				const explicit = Boolean(env.DB_PORT);
