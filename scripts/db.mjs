@@ -30,8 +30,10 @@ import { createConnection } from 'node:net';
 import { join } from 'node:path';
 import { ROOT, MARIADBD, UserFacingError, ensureMariadb, isMain } from './prepare.mjs';
 
+/** The git-ignored folder holding the server's data, socket, pid, log and generated secrets. */
 export const DATA_DIR = join(ROOT, '.data');
 const DATADIR = join(DATA_DIR, 'mariadb');
+/** The private server's unix socket (root admin work only). */
 export const SOCKET = join(DATA_DIR, 'mariadb.sock');
 const PID_FILE = join(DATA_DIR, 'mariadb.pid');
 const LOG_FILE = join(DATA_DIR, 'mariadb.log');
@@ -39,9 +41,11 @@ const PORT_FILE = join(DATA_DIR, 'mariadb.port');
 const PASSWORD_FILE = join(DATA_DIR, 'db-password');
 const LOCK_DIR = join(DATA_DIR, 'db.lock');
 
-/** The databases every start creates and the app user may use. */
+/** The app's database, created by every start. */
 export const APP_DATABASE = 'loopledger';
+/** The tests' database, created by every start and recreated empty by `npm test`. */
 export const TEST_DATABASE = 'loopledger_test';
+/** TCP port of the private server on 127.0.0.1 when DB_PORT is not set. */
 export const DEFAULT_DB_PORT = 3307;
 
 const NAME_RE = /^[A-Za-z0-9_]{1,64}$/;

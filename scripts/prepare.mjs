@@ -24,7 +24,9 @@ const LOCK_MARK = join(NODE_MODULES, '.loopledger-lock.sha256');
 /** npm's own record of what it installed (written by npm ci and npm install). */
 const NPM_HIDDEN_LOCK = join(NODE_MODULES, '.package-lock.json');
 
+/** The MariaDB server binary of Debian's mariadb-server package. */
 export const MARIADBD = '/usr/sbin/mariadbd';
+/** Debian's Chromium, driven by playwright-core in the browser tests. */
 export const CHROMIUM = '/usr/bin/chromium';
 
 /** Prints one line prefixed so the reader knows which step speaks. */
