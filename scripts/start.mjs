@@ -132,8 +132,53 @@ export async function databaseService({ mode, databaseName }) {
 	};
 }
 
+/**
+ * The local mail catcher (scripts/mail-catcher.ts) on 127.0.0.1:SMTP_CATCHER_PORT (default 2525),
+ * storing what the app sends in the app's database; skipped when SMTP_URL names a real relay.
+ * `mode: 'test'` moves to a free port and keeps it quiet. It ends with this process.
+ */
+export async function mailCatcherService({ mode, env }) {
+	if (process.env.SMTP_URL) {
+		say('SMTP_URL is set: mail goes to that relay, no local mail catcher');
+		return { env: {}, stop: async () => {} };
+	}
+	const wanted = portFrom(process.env.SMTP_CATCHER_PORT, 2525, 'SMTP_CATCHER_PORT');
+	const port = mode === 'test' ? await db.freePort(wanted) : wanted;
+	if (mode !== 'test' && (await db.portInUse(port))) {
+		throw new UserFacingError(`Port ${port} on 127.0.0.1 (mail catcher) is already in use. Stop that program or choose another: SMTP_CATCHER_PORT=2526 npm start`);
+	}
+	const child = spawn(bin('tsx'), ['scripts/mail-catcher.ts'], {
+		cwd: ROOT,
+		env: { ...process.env, ...env, SMTP_CATCHER_PORT: String(port) },
+		stdio: mode === 'test' ? 'ignore' : 'inherit'
+	});
+	child.unref();
+	const kill = () => child.exitCode === null && child.signalCode === null && child.kill('SIGTERM');
+	process.once('exit', kill);
+	const deadline = Date.now() + 30_000;
+	while (!(await db.portInUse(port))) {
+		if (child.exitCode !== null || child.signalCode !== null) throw new UserFacingError(`the mail catcher exited (${child.signalCode ?? child.exitCode}) before listening on ${port}`);
+		if (Date.now() > deadline) {
+			kill();
+			throw new UserFacingError(`the mail catcher did not listen on 127.0.0.1:${port} within 30 s`);
+		}
+		await new Promise((r) => setTimeout(r, 200));
+	}
+	say(`mail catcher on 127.0.0.1:${port} (administrators read caught mail in the app)`);
+	return {
+		env: { SMTP_CATCHER_PORT: String(port) },
+		stop: async () => {
+			if (child.exitCode !== null || child.signalCode !== null) return;
+			const gone = new Promise((r) => child.once('exit', r));
+			child.ref();
+			kill();
+			await gone;
+		}
+	};
+}
+
 /** Local services started before the app, in order; each returns the env it adds and how to stop it. */
-export const SERVICES = [databaseService];
+export const SERVICES = [databaseService, mailCatcherService];
 
 /** Starts every service; returns the merged env and a function stopping them in reverse order. */
 export async function startServices(context) {
@@ -141,7 +186,7 @@ export async function startServices(context) {
 	const env = {};
 	try {
 		for (const service of SERVICES) {
-			const started = await service(context);
+			const started = await service({ ...context, env: { ...env } });
 			Object.assign(env, started.env);
 			stops.unshift(started.stop);
 		}
