@@ -270,6 +270,9 @@ describe('register listing', () => {
 		expect(m2.revision.gain).toBe(1.6);
 		const m4 = page.rows.find((r) => r.id === ids.m4)!;
 		expect(m4.state).toBe('draft');
+		// A free integrator (IPDT, or a rational denominator ending in 0) makes the gain a rate.
+		const integrating = Object.fromEntries(page.rows.map((r) => [keysOf([r])[0], r.revision.integrating]));
+		expect(integrating).toEqual({ m1: false, m2: false, m3: true, m4: false, m6: true, m7: false, m8: false });
 		expect(m4.lastApprovedAt).toBeNull();
 	});
 

@@ -35,6 +35,8 @@ export interface RegisterRow {
 		parameters: Record<string, number>;
 		/** Process gain ΔPV/ΔMV (integrating: per second); null when the structure has none. */
 		gain: number | null;
+		/** The model has a pole at s = 0 (IPDT, or a rational model whose denominator ends in 0): its gain is a rate. */
+		integrating: boolean;
 		timeConstantSeconds: number | null;
 		delaySeconds: number;
 		timeUnit: 's' | 'min';
@@ -130,6 +132,7 @@ interface RawRow {
 	revision_state: string;
 	structure: string;
 	parameters: string | Record<string, number>;
+	den: string | number[];
 	gain: number | null;
 	time_constant_s: number | null;
 	delay_s: number;
@@ -155,6 +158,24 @@ function parseJson(v: string | Record<string, number> | null): Record<string, nu
 	}
 }
 
+/**
+ * True for a model with a free integrator: IPDT by definition, and a rational model whose
+ * denominator's constant term is 0 (a pole at s = 0; system type ≥ 1, e.g. Ogata 2010 §5-8).
+ */
+export function isIntegrating(structure: string, den: string | number[] | null): boolean {
+	if (structure === 'ipdt') return true;
+	if (structure !== 'rational' || den === null) return false;
+	let coefficients: unknown = den;
+	if (typeof den === 'string') {
+		try {
+			coefficients = JSON.parse(den);
+		} catch {
+			return false;
+		}
+	}
+	return Array.isArray(coefficients) && coefficients.length > 1 && Number(coefficients[coefficients.length - 1]) === 0;
+}
+
 function iso(v: Date | string | null): string | null {
 	if (v === null) return null;
 	const d = v instanceof Date ? v : new Date(`${v.replace(' ', 'T')}Z`);
@@ -175,6 +196,7 @@ function toRow(r: RawRow): RegisterRow {
 			structure: r.structure,
 			parameters: parseJson(r.parameters),
 			gain: r.gain === null ? null : Number(r.gain),
+			integrating: isIntegrating(r.structure, r.den),
 			timeConstantSeconds: r.time_constant_s === null ? null : Number(r.time_constant_s),
 			delaySeconds: Number(r.delay_s),
 			timeUnit: r.time_unit,
@@ -256,7 +278,7 @@ export async function listRegister(actor: Actor, query: RegisterQuery, scope: Re
 			a.id AS asset_id, a.tag, a.name AS asset_name, a.kind,
 			s.id AS site_id, s.code AS site_code, s.name AS site_name,
 			ar.id AS area_id, ar.code AS area_code, ar.name AS area_name,
-			r.id AS revision_id, r.revision_no, r.state AS revision_state, r.structure, r.parameters,
+			r.id AS revision_id, r.revision_no, r.state AS revision_state, r.structure, r.parameters, r.den,
 			r.gain, r.time_constant_s, r.delay_s, r.time_unit, r.mv_unit, r.pv_unit,
 			DATE_FORMAT(r.revalidate_by, '%Y-%m-%d') AS revalidate_by,
 			${APPROVED_AT_EXPR} AS approved_at_of_model,

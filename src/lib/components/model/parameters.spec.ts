@@ -53,6 +53,14 @@ describe('parameterRows', () => {
 		expect(parameterRows({ ...base, structure: 'rational', parameters: {}, timeUnit: 's' }).map((r) => r.key)).toEqual(['theta']);
 	});
 
+	it('treats a rational model with a pole at s = 0 as integrating', () => {
+		const rows = parameterRows({ ...base, structure: 'rational', gain: 0.0035, den: [4, 1, 0], parameters: { theta: 2 }, delaySeconds: 2, timeUnit: 'min', pv: { unit: '%' } });
+		expect(pick(rows)).toEqual([
+			['k', '0.21', '%/(%·min)', '0.0035 per s'],
+			['theta', '0.03333', 'min', '2 s']
+		]);
+	});
+
 	it('never shows a unit beside a missing value', () => {
 		const rows = parameterRows({ ...base, structure: 'fopdt', parameters: { tau: 10, theta: 1 }, timeUnit: 's' });
 		expect(rows[0]).toMatchObject({ key: 'k', value: '—', unit: '' });

@@ -27,6 +27,8 @@ interface RevisionLike {
 	structure: string;
 	parameters: StructureParameters;
 	gain: number | null;
+	/** Denominator coefficients, descending powers of s (a trailing 0 is a pole at s = 0). */
+	den?: readonly number[];
 	delaySeconds: number;
 	timeUnit: TimeUnit;
 	mv: { unit: string };
@@ -61,6 +63,18 @@ function frequencyRow(wnRadPerSec: number, unit: TimeUnit): ParameterRow {
 	};
 }
 
+/** The gain of a model with a free integrator: a rate, stored per second, shown per display unit. */
+function integratingGainRow(perSecond: number | null, r: RevisionLike, u: TimeUnit): ParameterRow {
+	return {
+		key: 'k',
+		symbolTex: 'K_v',
+		name: 'Integrating gain (rate of PV per MV)',
+		value: formatSig(gainValue(perSecond, u), SIG),
+		unit: gainUnit(r.pv.unit, r.mv.unit, u),
+		...(u === 'min' ? { alt: `${formatSig(perSecond, SIG)} per s` } : {})
+	};
+}
+
 /** Parameter rows for the structure of `r`; the dead time is always listed. */
 export function parameterRows(r: RevisionLike): ParameterRow[] {
 	const p = r.parameters ?? {};
@@ -89,25 +103,19 @@ export function parameterRows(r: RevisionLike): ParameterRow[] {
 				if (ok(p.zeta)) rows.push({ key: 'zeta', symbolTex: '\\zeta', name: 'Damping ratio', value: formatSig(p.zeta, SIG), unit: '' });
 			}
 			break;
-		case 'ipdt': {
-			const kv = gainValue(ok(p.k) ? p.k : r.gain, u);
-			rows.push({
-				key: 'k',
-				symbolTex: 'K_v',
-				name: 'Integrating gain (rate of PV per MV)',
-				value: formatSig(kv, SIG),
-				unit: gainUnit(r.pv.unit, r.mv.unit, u),
-				...(u === 'min' ? { alt: `${formatSig(ok(p.k) ? p.k : r.gain, SIG)} per s` } : {})
-			});
+		case 'ipdt':
+			rows.push(integratingGainRow(ok(p.k) ? p.k : r.gain, r, u));
 			break;
-		}
 		case 'second_order':
 			rows.push(gain);
 			if (ok(p.wn)) rows.push(frequencyRow(p.wn, u));
 			if (ok(p.zeta)) rows.push({ key: 'zeta', symbolTex: '\\zeta', name: 'Damping ratio', value: formatSig(p.zeta, SIG), unit: '' });
 			break;
-		default:
-			if (ok(r.gain)) rows.push({ ...gain, name: 'Steady-state gain', value: formatSig(r.gain, SIG) });
+		default: {
+			const den = r.den ?? [];
+			const integrating = den.length > 1 && den[den.length - 1] === 0;
+			if (ok(r.gain)) rows.push(integrating ? integratingGainRow(r.gain, r, u) : { ...gain, name: 'Steady-state gain', value: formatSig(r.gain, SIG) });
+		}
 	}
 	const theta = ok(p.theta) ? p.theta : r.delaySeconds;
 	if (r.structure !== 'second_order' || theta > 0) rows.push(timeRow('theta', '\\theta', 'Dead time', theta, u));
