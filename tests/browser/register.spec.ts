@@ -237,6 +237,27 @@ describe('register journeys', () => {
 		}
 	});
 
+	it('is usable from the keyboard: the skip link comes first and focus is visible', async () => {
+		const { context, page } = await signedIn();
+		try {
+			await page.keyboard.press('Tab');
+			const skip = page.getByRole('link', { name: 'Skip to content' });
+			await expect(skip.evaluate((el) => el === document.activeElement)).resolves.toBe(true);
+			await expect(skip.isVisible()).resolves.toBe(true);
+			await page.keyboard.press('Enter');
+			await expect(page.getByRole('main').evaluate((el) => el === document.activeElement)).resolves.toBe(true);
+			// The next stop is inside the main content (the text filter), skipping the header.
+			await page.keyboard.press('Tab');
+			const find = page.getByRole('searchbox', { name: 'Find' });
+			await expect(find.evaluate((el) => el === document.activeElement)).resolves.toBe(true);
+			const outline = await find.evaluate((el) => getComputedStyle(el).outlineStyle);
+			expect(outline).toBe('solid');
+			await page.screenshot({ path: `${SHOTS}/register-keyboard-focus.png` });
+		} finally {
+			await context.close();
+		}
+	});
+
 	it('answers a missing model with the not-found page', async () => {
 		const { context, page } = await signedIn();
 		try {
