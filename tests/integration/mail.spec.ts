@@ -15,7 +15,7 @@ import { PlantModel, initModels } from '../../src/lib/server/db/models';
 import { CaughtMail, MailOutbox } from '../../src/lib/server/db/models-workflow';
 import { approve, createModel, requestChanges, submitForReview } from '../../src/lib/server/revisions';
 import { getCaughtMail, listCaughtMail, startMailCatcher, type MailCatcher } from '../../src/lib/server/mail/catcher';
-import { backoffSeconds, deliverPending, listOutbox, retryFailedMail } from '../../src/lib/server/mail/worker';
+import { backoffSeconds, deliverPending, listOutbox, retryFailedMail, startMailWorker } from '../../src/lib/server/mail/worker';
 import { createMailTransport, type MailTransport } from '../../src/lib/server/mail/transport';
 import { DIGEST_HORIZON_DAYS, isoWeek, queueRevalidationDigest } from '../../src/lib/server/mail/outbox';
 import { escapeHtml } from '../../src/lib/server/mail/templates';
@@ -212,6 +212,34 @@ describe('the SMTP server is down, then back', () => {
 		await retryFailedMail(admin.acting, failed[0].id);
 		await expect(retryFailedMail(admin.acting, failed[0].id)).rejects.toThrow(/Only a message that failed/);
 		expect(await drain()).toBe(1);
+	});
+});
+
+describe('the in-process worker', () => {
+	it('sends queued mail on its own and stops cleanly; MAIL_WORKER=0 turns it off', async () => {
+		await modelInReview('tic77');
+		const t = transport();
+		const worker = startMailWorker({ intervalMs: 250, transport: t });
+		expect(startMailWorker({ intervalMs: 250, transport: t })).toBe(worker);
+		const deadline = Date.now() + 15_000;
+		while ((await CaughtMail.count()) < 2 && Date.now() < deadline) await new Promise((r) => setTimeout(r, 200));
+		await worker.stop();
+		t.close?.();
+		expect(await CaughtMail.count()).toBe(2);
+		expect(await MailOutbox.count({ where: { status: 'sent' } })).toBe(2);
+
+		process.env.MAIL_WORKER = '0';
+		resetEnvCache();
+		try {
+			await modelInReview('tic78');
+			const off = startMailWorker({ intervalMs: 250, transport: transport() });
+			await new Promise((r) => setTimeout(r, 1_000));
+			await off.stop();
+			expect(await MailOutbox.count({ where: { status: 'pending' } })).toBe(2);
+		} finally {
+			delete process.env.MAIL_WORKER;
+			resetEnvCache();
+		}
 	});
 });
 
