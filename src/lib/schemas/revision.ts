@@ -12,15 +12,23 @@
  */
 import { z } from 'zod';
 
+/** Model structures of the register (PRODUCT.md "Plant model"). */
 export const STRUCTURE_VALUES = ['fopdt', 'sopdt', 'ipdt', 'second_order', 'rational'] as const;
+/** One structure code. */
 export type StructureValue = (typeof STRUCTURE_VALUES)[number];
 /** How an SOPDT model is written: two time constants τ, τ2, or damping ratio ζ and natural frequency ωn. */
 export const SOPDT_FORM_VALUES = ['time_constants', 'damping'] as const;
+/** One SOPDT form. */
 export type SopdtForm = (typeof SOPDT_FORM_VALUES)[number];
+/** Display and entry time units of a revision. */
 export const TIME_UNIT_VALUES = ['s', 'min'] as const;
+/** s or min. */
 export type TimeUnitValue = (typeof TIME_UNIT_VALUES)[number];
+/** Identification methods (PRODUCT.md "Provenance"). */
 export const METHOD_VALUES = ['step_test', 'two_point', 'least_squares', 'datasheet', 'first_principles'] as const;
+/** One identification method. */
 export type MethodValue = (typeof METHOD_VALUES)[number];
+/** Asset kinds (PRODUCT.md "Site → Area → Asset"). */
 export const ASSET_KIND_VALUES = [
 	'pump',
 	'oven',
@@ -34,6 +42,7 @@ export const ASSET_KIND_VALUES = [
 	'valve',
 	'other'
 ] as const;
+/** One asset kind. */
 export type AssetKindValue = (typeof ASSET_KIND_VALUES)[number];
 
 /** Highest polynomial order of a rational model (numerator and denominator). */
@@ -82,6 +91,7 @@ export const REVISION_FIELD_LABELS = {
 	comment: 'Review comment',
 	reason: 'Reason'
 } as const;
+/** A field name of the revision forms. */
 export type RevisionField = keyof typeof REVISION_FIELD_LABELS;
 const L = REVISION_FIELD_LABELS;
 

@@ -11,9 +11,12 @@
 import { z } from 'zod';
 import { fieldErrors, formValues } from './revision';
 
+/** The same error and FormData helpers as the revision schemas. */
 export { fieldErrors, formValues };
 
+/** Controller types of a tuning set. */
 export const CONTROLLER_TYPE_VALUES = ['P', 'PI', 'PD', 'PID'] as const;
+/** Controller forms: ideal/ISA standard, series/interacting, parallel/independent. */
 export const CONTROLLER_FORM_VALUES = ['ideal', 'series', 'parallel'] as const;
 
 /** Human names of the fields, for messages and labels. */

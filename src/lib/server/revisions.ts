@@ -27,6 +27,7 @@ import { ConflictError, WorkflowConflict, enforce, isoOrNull, step, utcToday, ty
 import { activeReviewers, enqueueMail, modelLink, recipientById } from './mail/outbox';
 import { approvedMail, changesRequestedMail, reviewRequestedMail } from './mail/templates';
 
+/** The typed errors and options of the workflow writes, re-exported for routes. */
 export { ConflictError, WorkflowConflict, type Acting, type WriteOptions } from './workflow-common';
 
 // ── DTOs ─────────────────────────────────────────────────────────────────────────────────────

@@ -66,6 +66,7 @@ export interface TextPart {
 	removed: boolean;
 }
 
+/** A free text of both revisions as a word diff; `changed` false when identical. */
 export interface TextDiff {
 	key: 'changeSummary' | 'reviewComment' | 'validRange' | 'opNote';
 	label: string;

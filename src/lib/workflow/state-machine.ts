@@ -29,6 +29,7 @@ import { can, type Action, type Role } from '../auth/roles';
 
 /** States of a model revision or a tuning set (the `state` column of both tables). */
 export const WORKFLOW_STATES = ['draft', 'in_review', 'changes_requested', 'approved', 'superseded', 'withdrawn'] as const;
+/** One of the six workflow states. */
 export type WorkflowState = (typeof WORKFLOW_STATES)[number];
 
 /** Every transition of the workflow. */
@@ -43,6 +44,7 @@ export const TRANSITIONS = [
 	'withdraw',
 	'revalidate'
 ] as const;
+/** One of the workflow transitions. */
 export type Transition = (typeof TRANSITIONS)[number];
 
 /** What is being moved through the workflow: a model revision or a tuning set. */

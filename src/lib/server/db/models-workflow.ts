@@ -5,8 +5,10 @@
  */
 import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize';
 
+/** pending (to send or retry), sent, failed (refused permanently). */
 export type OutboxStatus = 'pending' | 'sent' | 'failed';
 
+/** One queued notification (table mail_outbox). */
 export class MailOutbox extends Model<InferAttributes<MailOutbox>, InferCreationAttributes<MailOutbox>> {
 	declare id: CreationOptional<number>;
 	declare kind: string;
@@ -30,6 +32,7 @@ export class MailOutbox extends Model<InferAttributes<MailOutbox>, InferCreation
 	declare updated_at: CreationOptional<Date>;
 }
 
+/** One message the local catcher received (table caught_mail). */
 export class CaughtMail extends Model<InferAttributes<CaughtMail>, InferCreationAttributes<CaughtMail>> {
 	declare id: CreationOptional<number>;
 	declare message_id: string | null;
@@ -44,6 +47,7 @@ export class CaughtMail extends Model<InferAttributes<CaughtMail>, InferCreation
 	declare received_at: Date;
 }
 
+/** Someone who saved a tuning set (four-eyes; table tuning_set_contributors). */
 export class TuningSetContributor extends Model<
 	InferAttributes<TuningSetContributor>,
 	InferCreationAttributes<TuningSetContributor>

@@ -47,6 +47,7 @@ export interface DeliveryReport {
 	failed: number;
 }
 
+/** Options of one delivery run. */
 export interface DeliverOptions {
 	/** Default: `createMailTransport()` (SMTP_URL or the local catcher). */
 	transport?: MailTransport;

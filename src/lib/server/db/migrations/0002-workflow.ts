@@ -6,6 +6,7 @@
  */
 import { DataTypes, type QueryInterface } from 'sequelize';
 
+/** Adds the workflow tables and columns. */
 export async function up({ context: qi }: { context: QueryInterface }): Promise<void> {
 	await qi.addColumn('model_revisions', 'base_revision_id', {
 		type: DataTypes.INTEGER.UNSIGNED,
@@ -89,6 +90,7 @@ export async function up({ context: qi }: { context: QueryInterface }): Promise<
 	await qi.addIndex('caught_mail', ['received_at'], { name: 'caught_mail_received' });
 }
 
+/** Removes them again (data in them is lost). */
 export async function down({ context: qi }: { context: QueryInterface }): Promise<void> {
 	await qi.dropTable('caught_mail');
 	await qi.dropTable('mail_outbox');
