@@ -22,6 +22,13 @@ describe('renderNoteMarkdown', () => {
 		expect(html).toContain('<path d="M');
 	});
 
+	it('renders inline math at the start of a wrapped line', () => {
+		const html = renderNoteMarkdown('The zero at\n$s = +1/8\\ \\mathrm{s^{-1}}$ limits the loop.\n\nCosts $5 and $6 stay text.');
+		expect(html).toContain('class="katex"');
+		expect(html).not.toContain('$s = ');
+		expect(html).toContain('Costs $5 and $6 stay text.');
+	});
+
 	it('shows malformed math as text instead of throwing', () => {
 		const html = renderNoteMarkdown('Broken $\\frac{1}{$ math');
 		expect(html).toContain('katex-error');

@@ -170,8 +170,32 @@ const OPTIONS: sanitizeHtml.IOptions = {
 // `rel` is added by the transform above and must survive the attribute filter.
 (OPTIONS.allowedAttributes as Record<string, string[]>).a.push('rel');
 
+/** The inline-math rule of marked-katex-extension (standard mode: a closing `$` is followed by space or punctuation). */
+const INLINE_MATH = /^(\${1,2})(?!\$)((?:\\.|[^\\\n])*?(?:\\.|[^\\\n$]))\1(?=[\s?!.,:？！。，：]|$)/;
+
+/**
+ * Where inline math may start in `src`: a `$` at the start or after any white space. The
+ * extension's own finder accepts only a preceding space, so math at the start of a wrapped line
+ * (after a newline) was left as text.
+ */
+function inlineMathStart(src: string): number | undefined {
+	let offset = 0;
+	while (offset < src.length) {
+		const index = src.indexOf('$', offset);
+		if (index === -1) return undefined;
+		if ((index === 0 || /\s/.test(src.charAt(index - 1))) && INLINE_MATH.test(src.slice(index))) return index;
+		offset = index + 1;
+		while (src.charAt(offset) === '$') offset++;
+	}
+	return undefined;
+}
+
+const katexExtension = markedKatex({ throwOnError: false, output: 'htmlAndMathml' });
+for (const extension of katexExtension.extensions ?? []) {
+	if (extension.name === 'inlineKatex' && 'start' in extension) extension.start = inlineMathStart;
+}
 const marked = new Marked({ gfm: true, breaks: false, async: false });
-marked.use(markedKatex({ throwOnError: false, output: 'htmlAndMathml' }));
+marked.use(katexExtension);
 
 /** Largest note the renderer accepts (characters); longer input is cut, never executed. */
 export const MAX_NOTE_CHARS = 200_000;
