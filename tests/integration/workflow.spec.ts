@@ -298,6 +298,27 @@ describe('optimistic locking: two people editing the same draft', () => {
 	});
 });
 
+describe('two reviewers deciding at once', () => {
+	it('rows are locked model first: one approval wins, the other gets a state conflict; one approval mail', async () => {
+		const created = await newModel('tic13');
+		await submitForReview(author.acting, created.revision.id);
+		const results = await Promise.allSettled([
+			approve(reviewerA.acting, created.revision.id, {}),
+			requestChanges(reviewerB.acting, created.revision.id, { comment: 'Too slow.' })
+		]);
+		const ok = results.filter((r) => r.status === 'fulfilled');
+		const bad = results.filter((r) => r.status === 'rejected') as PromiseRejectedResult[];
+		expect(ok).toHaveLength(1);
+		expect(bad).toHaveLength(1);
+		expect(bad[0].reason).toBeInstanceOf(WorkflowConflict);
+		const state = (await ModelRevision.findByPk(created.revision.id))?.state;
+		expect(['approved', 'changes_requested']).toContain(state);
+		const decisions = (await outboxFor('model_revision', created.revision.id)).filter((m) => m.kind !== 'review_requested');
+		expect(decisions).toHaveLength(1);
+		expect(decisions[0].kind).toBe(state === 'approved' ? 'approved' : 'changes_requested');
+	});
+});
+
 describe('an injected failure mid-approval leaves no partial state', () => {
 	for (const failAt of ['revision_saved', 'model_updated', 'audit_recorded', 'outbox_queued'] as const) {
 		it(`failure after "${failAt}": revision, model pointer, audit and outbox unchanged`, async () => {
