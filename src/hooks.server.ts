@@ -10,7 +10,9 @@
  *   cross-site writes with a session cookie → 403.
  */
 import { randomUUID } from 'node:crypto';
-import type { Handle, HandleServerError, RequestEvent } from '@sveltejs/kit';
+import type { Handle, HandleServerError, RequestEvent, ServerInit } from '@sveltejs/kit';
+import { building } from '$app/environment';
+import { startMailWorker } from '$lib/server/mail/worker';
 import { sequence } from '@sveltejs/kit/hooks';
 import { authHandle, isHttpsOrigin, sessionUserId, signOutSession } from './auth';
 import { sessionUser } from '$lib/server/auth';
@@ -150,6 +152,11 @@ const guards: Handle = async ({ event, resolve }) => {
 		}
 	}
 	return resolve(event);
+};
+
+/** Start the mail outbox worker with the server (never during the build); MAIL_WORKER=0 turns it off. */
+export const init: ServerInit = () => {
+	if (!building) startMailWorker();
 };
 
 export const handle: Handle = sequence(securityHeaders, hideAuthEndpoints, authHandle, resolveUser, guards);

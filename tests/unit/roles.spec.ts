@@ -27,7 +27,7 @@ const TABLE: Record<Action, [boolean, boolean, boolean, boolean]> = {
 	'asset.create': [N, Y, Y, Y],
 	'revision.review': [N, N, Y, N],
 	'tuning.review': [N, N, Y, N],
-	'model.withdraw': [N, N, Y, N],
+	'model.withdraw': [N, N, Y, Y], // issue 5: reviewer or admin, with a reason
 	'user.manage': [N, N, N, Y],
 	'site.manage': [N, N, N, Y],
 	'area.manage': [N, N, N, Y],

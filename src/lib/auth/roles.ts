@@ -67,10 +67,14 @@ const ENGINEER: readonly Action[] = [
 	'asset.create'
 ];
 const REVIEWER: readonly Action[] = [...ENGINEER, 'revision.review', 'tuning.review', 'model.withdraw'];
-/** An administrator reads like a viewer (drafts included) and runs the administration; no review. */
+/**
+ * An administrator reads like a viewer (drafts included) and runs the administration; no review.
+ * Issue 5 lets an admin withdraw (retire) a model with a reason — retiring is not approving.
+ */
 const ADMIN: readonly Action[] = [
 	...VIEWER,
 	'model.read_draft',
+	'model.withdraw',
 	'asset.create',
 	'user.manage',
 	'site.manage',
