@@ -46,6 +46,7 @@ async function vitestProject(project, env) {
 	const file = join(RESULTS, `vitest-${project}.json`);
 	rmSync(file, { force: true });
 	say(`vitest ${project}`);
+	const started = Date.now();
 	const { code, signal } = await run(
 		bin('vitest'),
 		['run', '--project', project, '--passWithNoTests', '--reporter=default', '--reporter=json', `--outputFile.json=${file}`],
@@ -60,15 +61,24 @@ async function vitestProject(project, env) {
 	if (!report) problems.push('no JSON report written');
 	if (report && total === 0) problems.push('ran no test');
 	if ((code !== 0 || signal) && failed === 0) problems.push(`vitest exited ${signal ?? code} (a test file failed to load or a hook failed)`);
-	results.push({ step: `vitest ${project}`, passed, failed: failed + (problems.length ? 1 : 0), skipped, note: problems.join('; ') });
+	results.push({
+		step: `vitest ${project}`,
+		passed,
+		failed: failed + (problems.length ? 1 : 0),
+		skipped,
+		note: problems.join('; '),
+		seconds: (Date.now() - started) / 1000
+	});
 }
 
 /** Runs a non-test step (svelte-check, build …); counts one failure when it fails. */
 async function step(name, command, args, env) {
 	say(name);
+	const started = Date.now();
 	const { code, signal } = await run(command, args, { env });
 	const ok = code === 0 && !signal;
-	results.push({ step: name, passed: 0, failed: ok ? 0 : 1, skipped: 0, note: ok ? '' : `exit ${signal ?? code}`, check: true });
+	const seconds = (Date.now() - started) / 1000;
+	results.push({ step: name, passed: 0, failed: ok ? 0 : 1, skipped: 0, note: ok ? '' : `exit ${signal ?? code}`, check: true, seconds });
 	return ok;
 }
 
@@ -122,7 +132,8 @@ function summary() {
 	const lines = ['', '[test] summary'];
 	for (const r of results) {
 		const counts = r.check ? (r.failed ? 'FAILED' : 'ok') : `${r.passed} passed, ${r.failed} failed${r.skipped ? `, ${r.skipped} skipped` : ''}`;
-		lines.push(`  ${r.step.padEnd(28)} ${counts}${r.note ? `  (${r.note})` : ''}`);
+		const time = r.seconds === undefined ? '' : `${Math.round(r.seconds)} s`.padStart(6);
+		lines.push(`  ${r.step.padEnd(28)}${time}  ${counts}${r.note ? `  (${r.note})` : ''}`);
 	}
 	if (interrupted) lines.push(`  interrupted by ${interrupted}`);
 	lines.push('', `tests: ${passed} passed, ${failed} failed${skipped ? `, ${skipped} skipped` : ''}`);
@@ -133,6 +144,7 @@ function summary() {
 async function main() {
 	const started = Date.now();
 	prepare({ browser: true });
+	results.push({ step: 'prepare', passed: 0, failed: 0, skipped: 0, note: '', check: true, seconds: (Date.now() - started) / 1000 });
 	mkdirSync(RESULTS, { recursive: true });
 
 	services = await startServices({ mode: 'test', databaseName: db.TEST_DATABASE });
