@@ -103,8 +103,10 @@ export interface ModelPageDto {
 	/** The revision shown; `isApproved` false means a never-approved draft (engineers and above only). */
 	revision: RevisionDto;
 	isApproved: boolean;
+	/** Id of the model's approved revision (null when none); the shown one differs when another was asked for. */
+	approvedRevisionId: number | null;
 	/** A newer revision waiting (draft, in review, changes requested); engineers and above only. */
-	pending: { no: number; state: string; authorName: string; submittedAt: string | null } | null;
+	pending: { id: number; no: number; state: string; authorName: string; submittedAt: string | null } | null;
 	stale: boolean;
 	history: RevisionListItem[];
 	tuningSets: TuningSetDto[];
@@ -223,9 +225,16 @@ export async function listTuningSets(actor: Actor, where: { modelId: number } | 
 
 /**
  * Everything the read-only model page shows. NotFound when the model does not exist or is not
- * visible to the actor (a viewer asking for a never-approved model).
+ * visible to the actor (a viewer asking for a never-approved model). `options.revisionId` shows
+ * that revision of the model instead (engineers and above: any; viewers: approved or superseded
+ * ones only; NotFound otherwise); the stale flag always follows the approved revision.
  */
-export async function getModelPage(actor: Actor, modelId: number, today: string = todayUtc()): Promise<ModelPageDto> {
+export async function getModelPage(
+	actor: Actor,
+	modelId: number,
+	today: string = todayUtc(),
+	options: { revisionId?: number | null } = {}
+): Promise<ModelPageDto> {
 	assertCan(actor.role, 'model.read');
 	const drafts = can(actor.role, 'model.read_draft');
 	const db = sequelize();
@@ -255,15 +264,23 @@ export async function getModelPage(actor: Actor, modelId: number, today: string 
 		{ type: QueryTypes.SELECT, replacements: { modelId } }
 	);
 	const approvedId = head.approved_revision_id === null ? null : Number(head.approved_revision_id);
-	const shownRaw = approvedId === null ? revisions[0] : revisions.find((r) => Number(r.id) === approvedId);
-	if (!shownRaw) throw new NotFound('There is no model with this id.');
+	const defaultRaw = approvedId === null ? revisions[0] : revisions.find((r) => Number(r.id) === approvedId);
+	if (!defaultRaw) throw new NotFound('There is no model with this id.');
+	let shownRaw = defaultRaw;
+	if (options.revisionId) {
+		const asked = revisions.find((r) => Number(r.id) === options.revisionId);
+		if (!asked || (!drafts && asked.approved_at === null)) throw new NotFound('This model has no such revision.');
+		shownRaw = asked;
+	}
 	const revision = toRevision(shownRaw);
+	const reference = toRevision(defaultRaw);
 
 	const newest = revisions[0];
 	const pendingStates = new Set(['draft', 'in_review', 'changes_requested']);
 	const pending =
 		drafts && approvedId !== null && newest && Number(newest.id) !== approvedId && pendingStates.has(String(newest.state))
 			? {
+					id: Number(newest.id),
 					no: Number(newest.revision_no),
 					state: String(newest.state),
 					authorName: String(newest.author_name),
@@ -305,8 +322,9 @@ export async function getModelPage(actor: Actor, modelId: number, today: string 
 		area: { id: Number(head.area_id), code: String(head.area_code), name: String(head.area_name) },
 		revision,
 		isApproved: approvedId !== null,
+		approvedRevisionId: approvedId,
 		pending,
-		stale: status !== 'withdrawn' && revision.provenance.revalidateBy !== null && revision.provenance.revalidateBy < today,
+		stale: status !== 'withdrawn' && reference.provenance.revalidateBy !== null && reference.provenance.revalidateBy < today,
 		history,
 		tuningSets,
 		notes: noteRows.map((n) => ({
