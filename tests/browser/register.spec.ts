@@ -246,7 +246,10 @@ describe('register journeys', () => {
 			await expect(skip.isVisible()).resolves.toBe(true);
 			await page.keyboard.press('Enter');
 			await expect(page.getByRole('main').evaluate((el) => el === document.activeElement)).resolves.toBe(true);
-			// The next stop is inside the main content (the text filter), skipping the header.
+			// The next stops are inside the main content (an engineer's "New model" action, then the
+			// text filter), skipping the header.
+			await page.keyboard.press('Tab');
+			await expect(page.getByRole('link', { name: 'New model' }).evaluate((el) => el === document.activeElement)).resolves.toBe(true);
 			await page.keyboard.press('Tab');
 			const find = page.getByRole('searchbox', { name: 'Find' });
 			await expect(find.evaluate((el) => el === document.activeElement)).resolves.toBe(true);
