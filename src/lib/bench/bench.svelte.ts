@@ -206,7 +206,8 @@ export class BenchState {
 	readonly structure: PlantStructure;
 	readonly pv: BenchSignal;
 	readonly mv: BenchSignal;
-	readonly savedSets: SavedTuningSet[];
+	/** Saved tuning sets of the model (updated after a save). */
+	savedSets = $state<SavedTuningSet[]>([]);
 	/** Characteristic time (s) and effective gain the sliders are centred on. */
 	readonly timeScale: number;
 	readonly effectiveGain: number | null;

@@ -1,9 +1,14 @@
 import katex from 'katex';
+import { fail } from '@sveltejs/kit';
 import { numericTransferFunctionTex, symbolicTransferFunctionTex } from '$lib/format';
 import { parameterRows } from '$lib/components/model/parameters';
+import { can } from '$lib/auth/roles';
+import { fieldErrors, formValues, tuningSetSchema } from '$lib/schemas/tuning-set';
+import { httpStatusOf, isExpectedError, ServiceError } from '$lib/server/errors';
 import { getModelPage } from '$lib/server/models';
 import { actorOf, orHttpError } from '$lib/server/route-errors';
-import type { PageServerLoad } from './$types';
+import { saveTuningDraft } from '$lib/server/tuning-sets';
+import type { Actions, PageServerLoad } from './$types';
 
 /** KaTeX to HTML on the server: the page needs no client script for its equations. */
 const tex = (source: string, displayMode = false) =>
@@ -21,6 +26,50 @@ export const load = (async ({ params, locals }) => {
 			symbolic: tex(symbolicTransferFunctionTex(r.structure, r.parameters), true),
 			numeric: tex(numericTransferFunctionTex(tfInput, r.timeUnit), true)
 		},
-		parameters: parameterRows(r).map((row) => ({ ...row, symbolHtml: tex(row.symbolTex) }))
+		parameters: parameterRows(r).map((row) => ({ ...row, symbolHtml: tex(row.symbolTex) })),
+		bench: {
+			// The bench's plant in seconds, the signals for units and the proportional band, and the
+			// tuning sets it can reset to or compare (withdrawn ones left out).
+			model: { plant: { num: r.num, den: r.den, delay: r.delaySeconds }, timeUnit: r.timeUnit, pv: r.pv, mv: r.mv },
+			savedSets: model.tuningSets.filter((t) => t.state !== 'withdrawn'),
+			canSave: can(actor.role, 'tuning.save_draft'),
+			saveBlocked:
+				model.status === 'withdrawn'
+					? 'This model is withdrawn: no new tuning sets are saved against it.'
+					: !model.isApproved || model.approvedRevisionId === null
+						? 'Tuning sets are saved against the approved revision; this model has none yet.'
+						: model.approvedRevisionId !== r.id
+							? `Tuning sets are saved against the approved revision; this page shows revision ${r.no}. Open the approved revision to save one.`
+							: null
+		}
 	};
 }) satisfies PageServerLoad;
+
+export const actions = {
+	/**
+	 * Saves the bench's settings as a draft tuning set of this model (engineers and reviewers; the
+	 * service checks the role and the model's state again). Errors come back under
+	 * `saveTuningSet.errors`, keyed by field.
+	 */
+	saveTuningSet: async ({ request, params, locals, getClientAddress }) => {
+		const data = formValues(await request.formData());
+		const values = { loopTag: data.loopTag ?? '', notes: data.notes ?? '' };
+		const user = locals.user;
+		if (!user) return fail(401, { saveTuningSet: { ok: false as const, errors: { _form: 'Sign in to save a tuning set.' }, values } });
+		const parsed = tuningSetSchema().safeParse(data);
+		if (!parsed.success) return fail(400, { saveTuningSet: { ok: false as const, errors: fieldErrors(parsed.error), values } });
+		try {
+			const saved = await saveTuningDraft(
+				{ user: { id: user.id, email: user.email, name: user.name, role: user.role }, ip: getClientAddress() },
+				Number(params.id),
+				parsed.data
+			);
+			return { saveTuningSet: { ok: true as const, id: saved.id, loopTag: saved.loopTag } };
+		} catch (e) {
+			if (!isExpectedError(e)) throw e;
+			const errors: Record<string, string> = { ...(e instanceof ServiceError ? e.fieldErrors : {}) };
+			if (Object.keys(errors).length === 0) errors._form = e.message;
+			return fail(httpStatusOf(e), { saveTuningSet: { ok: false as const, errors, values } });
+		}
+	}
+} satisfies Actions;
