@@ -139,7 +139,7 @@ export async function* auditBatches(
 	let below: number | null = null;
 	while (left > 0) {
 		const where: WhereOptions = below === null ? base : { [Op.and]: [base, { id: { [Op.lt]: below } }] };
-		const rows = await AuditEvent.findAll({ where, order: [['id', 'DESC']], limit: Math.min(batch, left) });
+		const rows: AuditEvent[] = await AuditEvent.findAll({ where, order: [['id', 'DESC']], limit: Math.min(batch, left) });
 		if (rows.length === 0) return;
 		left -= rows.length;
 		below = Number(rows[rows.length - 1].id);

@@ -11,6 +11,7 @@ import { diffRevisions, listReviewQueue, type ReviewQueueItem } from './revision
 import { decide } from '../workflow/state-machine';
 import { relativeChange } from '../workflow/change-size';
 import type { Acting } from './workflow-common';
+import { percentWords } from '../components/review/format';
 
 /** How big a change is against what is approved now. */
 export interface ChangeSize {
@@ -75,13 +76,6 @@ const PARAMETER_SHORT: Record<string, string> = {
 	gain: 'gain',
 	timeConstant: 'τ (dominant)'
 };
-
-/** "+12 %", "−35 %" (one decimal below 10 %). */
-export function percentWords(p: number): string {
-	const a = Math.abs(p);
-	const text = a < 10 ? (Math.round(a * 10) / 10).toString() : Math.round(a).toString();
-	return `${p > 0 ? '+' : p < 0 ? '−' : '±'}${text} %`;
-}
 
 function sizeFrom(changes: { label: string; percent: number | null }[], large: string[], structureChanged: boolean, isNew: boolean): ChangeSize {
 	const measured = changes.filter((c): c is { label: string; percent: number } => c.percent !== null && Number.isFinite(c.percent));

@@ -6,7 +6,8 @@
  * the loop is then open and its load-step response at the plant input IS the plant's step
  * response. Pure; runs on the server and in the browser.
  */
-import { simulateLoop, type ControllerTerms } from '$lib/control/simulation';
+import { simulateLoop } from '$lib/control/simulation';
+import type { ControllerTerms } from '$lib/control/controller';
 import { roots } from '$lib/control/roots';
 import type { TransferFunction } from '$lib/control/types';
 

@@ -1,11 +1,12 @@
 import katex from 'katex';
-import { fail } from '@sveltejs/kit';
+import { error, fail } from '@sveltejs/kit';
 import { numericTransferFunctionTex, symbolicTransferFunctionTex } from '$lib/format';
 import { parameterRows } from '$lib/components/model/parameters';
 import { can } from '$lib/auth/roles';
 import { fieldErrors, formValues, tuningSetSchema } from '$lib/schemas/tuning-set';
 import { httpStatusOf, isExpectedError, ServiceError } from '$lib/server/errors';
 import { getModelPage } from '$lib/server/models';
+import { modelRevisionQuerySchema, queryValues } from '$lib/schemas/review';
 import { actorOf, orHttpError } from '$lib/server/route-errors';
 import { saveTuningDraft } from '$lib/server/tuning-sets';
 import type { Actions, PageServerLoad } from './$types';
@@ -15,13 +16,17 @@ const tex = (source: string, displayMode = false) =>
 	katex.renderToString(source, { displayMode, throwOnError: false, output: 'htmlAndMathml', strict: false });
 
 /** The read-only model page: the approved revision (or a draft for engineers), its facts and notes. */
-export const load = (async ({ params, locals }) => {
+export const load = (async ({ params, locals, url }) => {
 	const actor = actorOf(locals.user);
-	const model = await orHttpError(getModelPage(actor, Number(params.id)));
+	// `?revision=<id>` shows another revision of this model (drafts for engineers and above).
+	const chosen = modelRevisionQuerySchema.safeParse(queryValues(url.searchParams));
+	if (!chosen.success) error(400, chosen.error.issues[0].message);
+	const model = await orHttpError(getModelPage(actor, Number(params.id), undefined, { revisionId: chosen.data.revision ?? null }));
 	const r = model.revision;
 	const tfInput = { structure: r.structure, parameters: r.parameters, num: r.num, den: r.den, delaySeconds: r.delaySeconds };
 	return {
 		model,
+		canReadDrafts: can(actor.role, 'model.read_draft'),
 		equations: {
 			symbolic: tex(symbolicTransferFunctionTex(r.structure, r.parameters), true),
 			numeric: tex(numericTransferFunctionTex(tfInput, r.timeUnit), true)
