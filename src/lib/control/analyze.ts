@@ -197,12 +197,29 @@ function sanitize(r: AnalysisResponse): AnalysisResponse {
 			return null;
 		}
 		if (Array.isArray(v)) {
-			for (let i = 0; i < v.length; i++) v[i] = walk(v[i], `${path}[${i}]`);
+			for (let i = 0; i < v.length; i++) {
+				const x = v[i];
+				// Fast path for the long numeric series: only a bad value builds a path.
+				if (typeof x === 'number') {
+					if (!Number.isFinite(x)) {
+						found.push(`${path}[${i}]`);
+						v[i] = null;
+					}
+				} else if (x !== null && typeof x === 'object') walk(x, `${path}[${i}]`);
+			}
 			return v;
 		}
 		if (v && typeof v === 'object') {
 			const o = v as Record<string, unknown>;
-			for (const k of Object.keys(o)) o[k] = walk(o[k], path ? `${path}.${k}` : k);
+			for (const k in o) {
+				const x = o[k];
+				if (typeof x === 'number') {
+					if (!Number.isFinite(x)) {
+						found.push(path ? `${path}.${k}` : k);
+						o[k] = null;
+					}
+				} else if (x !== null && typeof x === 'object') walk(x, path ? `${path}.${k}` : k);
+			}
 			return o;
 		}
 		return v;

@@ -17,6 +17,9 @@ import { polyAdd, polyDegree, polyMaxAbs, polyMul, polySub, polyTrailingZeros, p
 import { roots } from './roots';
 import { pade } from './transfer-function';
 
+/** θ·max|p| below which a dead time is neglected for closed-loop poles (p: delay-free closed-loop poles). */
+export const NEGLIGIBLE_DELAY = 1e-6;
+
 /** Default order of the Padé approximant used for closed-loop poles of delayed loops. */
 export const DEFAULT_PADE_ORDER = 5;
 
@@ -234,7 +237,17 @@ export function analyzeClosedLoop(plant: TransferFunction, terms: ControllerTerm
 		throw new AnalysisInputError('controller.n', 'The loop C·G is improper (an ideal derivative on a plant with as many zeros as poles): set a derivative filter n.');
 	if (polyDegree(exact.char) < dL)
 		throw new AnalysisInputError('controller.kp', 'The loop is ill-posed: 1 + C(∞)·G(∞) = 0, so the closed loop has no proper solution.');
-	const delayed = plant.delay > 0;
+	let delayed = plant.delay > 0;
+	if (delayed) {
+		// A dead time far below every time scale of the loop would only add Padé poles near
+		// −2n/θ and coefficients outside the floating-point range: neglect it for the poles.
+		const exactPoles = roots(exact.char);
+		const fastest = Math.max(1e-300, ...exactPoles.map((p) => Math.hypot(p.re, p.im)));
+		if (plant.delay * fastest < NEGLIGIBLE_DELAY) {
+			delayed = false;
+			warnings.push(`The dead time (${plant.delay.toPrecision(3)} s) is negligible against the closed-loop time scales (θ·|p|max < ${NEGLIGIBLE_DELAY}); poles and zeros are those of the delay-free loop.`);
+		}
+	}
 	const polys = delayed ? closedLoopPolynomials(plant, terms, padeOrder) : exact;
 	const lead = polys.char[0];
 	const den = polys.char.map((c) => c / lead);

@@ -21,6 +21,9 @@ export interface ControllerTerms {
 	c: number;
 }
 
+/** Shortest integral or derivative time accepted (s); shorter settings are unit mistakes. */
+export const MIN_TIME = 1e-6;
+
 const isNum = (v: unknown): v is number => typeof v === 'number' && Number.isFinite(v);
 const present = (v: unknown) => v !== undefined && v !== null;
 
@@ -29,7 +32,8 @@ const present = (v: unknown) => v !== undefined && v !== null;
  * forms). Series PID: kp(1 + 1/(ti s))(1 + td s/(1 + Tf s)) expands exactly to
  * p = kp(1 + td/ti), i = kp/ti, d = kp·td·(1 − Tf/ti) with Tf = td/n (partial fractions).
  * Set-point weights b, c act on these p and d terms. Parameters that the type does not use are
- * ignored. Throws AnalysisInputError naming `controller.<field>`.
+ * ignored. Integral and derivative times (also kp/ki and kd/kp) below 1e-6 s are rejected.
+ * Throws AnalysisInputError naming `controller.<field>`.
  */
 export function controllerTerms(s: ControllerSettings, field = 'controller'): ControllerTerms {
 	if (!s || typeof s !== 'object') throw new AnalysisInputError(field, 'The controller settings are missing.');
@@ -61,12 +65,14 @@ export function controllerTerms(s: ControllerSettings, field = 'controller'): Co
 			if (!present(s.ki)) throw new AnalysisInputError(`${field}.ki`, 'The parallel form needs the integral gain ki (1/s).');
 			if (!isNum(s.ki)) throw new AnalysisInputError(`${field}.ki`, 'The integral gain ki must be a finite number.');
 			if (s.ki * kp < 0) throw new AnalysisInputError(`${field}.ki`, 'The integral gain ki must have the same sign as kp (or be 0).');
+			if (Math.abs(s.ki) > 1e6 * Math.abs(kp)) throw new AnalysisInputError(`${field}.ki`, 'The integral gain ki must be at most 1e6·|kp| (an integral time of at least 1 µs).');
 			i = s.ki;
 		}
 		if (hasD) {
 			if (!present(s.kd)) throw new AnalysisInputError(`${field}.kd`, 'The parallel form needs the derivative gain kd (s).');
 			if (!isNum(s.kd)) throw new AnalysisInputError(`${field}.kd`, 'The derivative gain kd must be a finite number.');
 			if (s.kd * kp < 0) throw new AnalysisInputError(`${field}.kd`, 'The derivative gain kd must have the same sign as kp (or be 0).');
+			if (s.kd !== 0 && Math.abs(s.kd) < 1e-6 * Math.abs(kp)) throw new AnalysisInputError(`${field}.kd`, 'The derivative gain kd must be 0 or at least 1e-6·|kp| (a derivative time of at least 1 µs).');
 			d = s.kd;
 		}
 		const tf = d !== 0 && n !== null ? d / kp / n : 0;
@@ -78,11 +84,13 @@ export function controllerTerms(s: ControllerSettings, field = 'controller'): Co
 	if (hasI) {
 		if (!present(s.ti)) throw new AnalysisInputError(`${field}.ti`, 'The integral time ti (seconds) is required for PI and PID.');
 		if (!isNum(s.ti) || s.ti <= 0) throw new AnalysisInputError(`${field}.ti`, 'The integral time ti must be a finite number > 0 (seconds).');
+		if (s.ti < MIN_TIME) throw new AnalysisInputError(`${field}.ti`, 'The integral time ti must be at least 1e-6 s.');
 		ti = s.ti;
 	}
 	if (hasD) {
 		if (!present(s.td)) throw new AnalysisInputError(`${field}.td`, 'The derivative time td (seconds) is required for PD and PID.');
 		if (!isNum(s.td) || s.td < 0) throw new AnalysisInputError(`${field}.td`, 'The derivative time td must be a finite number ≥ 0 (seconds).');
+		if (s.td > 0 && s.td < MIN_TIME) throw new AnalysisInputError(`${field}.td`, 'The derivative time td must be 0 or at least 1e-6 s.');
 		td = s.td;
 	}
 	const tf = td > 0 && n !== null ? td / n : 0;

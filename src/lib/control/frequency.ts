@@ -112,21 +112,21 @@ export interface GridOptions {
 
 /**
  * Frequency band (rad/s) of the automatic grid: from two decades below the lowest corner
- * (|roots|, 1/θ) to two decades above the highest root corner and one above 1/θ, extended
- * upwards until |L| < 0.5 for strictly proper loops so every gain crossover lies inside.
+ * (|roots|, 1/θ) to two decades above the highest (at most 12 decades wide), extended upwards
+ * until |L| < 0.5 for strictly proper loops so every gain crossover lies inside.
  */
 export function frequencyRange(m: LoopModel, opts: GridOptions = {}): { wMin: number; wMax: number } {
-	// Root corners get two decades of margin; the dead-time corner 1/θ one decade (beyond it the
-	// delay only adds phase crossings with ever larger gain margins).
+	// Two decades of margin above the highest corner (root corners and the dead-time corner 1/θ).
 	const rootCorners = m.corners.filter((c) => !(m.delay > 0 && c === 1 / m.delay));
 	const top = Math.max(
 		rootCorners.length ? Math.pow(10, Math.ceil(Math.log10(Math.max(...rootCorners))) + 2) : 0,
-		m.delay > 0 ? Math.pow(10, Math.ceil(Math.log10(1 / m.delay)) + 1) : 0
+		m.delay > 0 ? Math.pow(10, Math.ceil(Math.log10(1 / m.delay)) + 2) : 0
 	);
 	let wMin = opts.wMin ?? Math.pow(10, Math.floor(Math.log10(Math.min(...m.corners))) - 2);
-	let wMax = opts.wMax ?? top;
+	// At most 12 decades (a negligible dead time would otherwise push the band to 1/θ).
+	let wMax = opts.wMax ?? Math.min(top, wMin * 1e12);
 	if (opts.wMax === undefined && m.relativeDegree > 0) {
-		for (let i = 0; i < 8 && loopLogMagnitude(m, wMax) > Math.log(0.5); i++) wMax *= 10;
+		for (let i = 0; i < 8 && loopLogMagnitude(m, wMax) > Math.log(0.5) && wMax < wMin * 1e16; i++) wMax *= 10;
 	}
 	if (opts.wMin === undefined && m.systemType < 0) {
 		for (let i = 0; i < 8 && loopLogMagnitude(m, wMin) > Math.log(0.5); i++) wMin /= 10;
@@ -171,6 +171,24 @@ export function analysisGrid(m: LoopModel, display: Float64Array): Float64Array 
 	return all;
 }
 
+/** log|L| and the continuous phase (rad) of the loop on a frequency grid. */
+export interface GridValues {
+	lm: Float64Array;
+	ph: Float64Array;
+}
+
+/** Evaluates log|L(jω)| and ∠L(jω) once on a grid, for reuse by Bode, crossings and Ms. */
+export function evaluateLoop(m: LoopModel, grid: ArrayLike<number>): GridValues {
+	const n = grid.length;
+	const lm = new Float64Array(n);
+	const ph = new Float64Array(n);
+	for (let i = 0; i < n; i++) {
+		lm[i] = loopLogMagnitude(m, grid[i]);
+		ph[i] = loopPhase(m, grid[i]);
+	}
+	return { lm, ph };
+}
+
 /** Bode data: ω (rad/s), |L| in dB, continuous phase in degrees. */
 export interface BodeData {
 	w: number[];
@@ -179,13 +197,16 @@ export interface BodeData {
 }
 
 /** Bode magnitude (dB) and phase (degrees, unwrapped, exact delay phase) on the grid w. */
-export function bode(m: LoopModel, w: ArrayLike<number>): BodeData {
-	const out: BodeData = { w: [], magDb: [], phaseDeg: [] };
+export function bode(m: LoopModel, w: ArrayLike<number>, values?: GridValues): BodeData {
+	const v = values ?? evaluateLoop(m, w);
+	const n = w.length;
+	const out: BodeData = { w: new Array(n), magDb: new Array(n), phaseDeg: new Array(n) };
 	const toDb = 20 / Math.LN10;
-	for (let i = 0; i < w.length; i++) {
-		out.w.push(w[i]);
-		out.magDb.push(toDb * loopLogMagnitude(m, w[i]));
-		out.phaseDeg.push((180 / Math.PI) * loopPhase(m, w[i]));
+	const toDeg = 180 / Math.PI;
+	for (let i = 0; i < n; i++) {
+		out.w[i] = w[i];
+		out.magDb[i] = toDb * v.lm[i];
+		out.phaseDeg[i] = toDeg * v.ph[i];
 	}
 	return out;
 }
@@ -225,18 +246,19 @@ const wrapPi = (x: number) => {
 	return y;
 };
 
+/** Phase crossovers kept at most (a dead time gives infinitely many, with growing gain margins). */
+export const MAX_PHASE_CROSSINGS = 100;
+/** log|L| below which phase crossovers are not sought (gain margin above 120 dB). */
+const PHASE_CROSSING_FLOOR = Math.log(1e-6);
+
 /**
- * All phase crossovers (∠L(jω) = −180° mod 360°) and gain crossovers (|L(jω)| = 1) on the
+ * All phase crossovers (∠L(jω) = −180° mod 360°; the first MAX_PHASE_CROSSINGS in frequency, and
+ * only where |L| ≥ 1e-6, i.e. gain margins up to 120 dB) and gain crossovers (|L(jω)| = 1) on the
  * analysis grid, each bracketed on the grid and refined by Brent's method in log ω.
  */
-export function findCrossings(m: LoopModel, grid: ArrayLike<number>): { phase: PhaseCrossing[]; gain: GainCrossing[] } {
+export function findCrossings(m: LoopModel, grid: ArrayLike<number>, values?: GridValues): { phase: PhaseCrossing[]; gain: GainCrossing[] } {
 	const n = grid.length;
-	const lm = new Float64Array(n);
-	const ph = new Float64Array(n);
-	for (let i = 0; i < n; i++) {
-		lm[i] = loopLogMagnitude(m, grid[i]);
-		ph[i] = loopPhase(m, grid[i]);
-	}
+	const { lm, ph } = values ?? evaluateLoop(m, grid);
 	const phase: PhaseCrossing[] = [];
 	const gain: GainCrossing[] = [];
 	const toDb = 20 / Math.LN10;
@@ -251,12 +273,14 @@ export function findCrossings(m: LoopModel, grid: ArrayLike<number>): { phase: P
 				gain.push({ w, phaseMargin: (180 / Math.PI) * wrapPi(loopPhase(m, w) + Math.PI) });
 			}
 		}
-		// Phase crossover: (φ + π)/2π passes an integer.
+		// Phase crossover: (φ + π)/2π passes an integer. Where |L| < 1e-6 on the whole interval
+		// the gain margin exceeds 120 dB: such crossings are not sought.
+		if (lm[i] < PHASE_CROSSING_FLOOR && lm[i + 1] < PHASE_CROSSING_FLOOR) continue;
 		const u0 = (ph[i] + Math.PI) / (2 * Math.PI);
 		const u1 = (ph[i + 1] + Math.PI) / (2 * Math.PI);
 		const lo = Math.min(u0, u1);
 		const hi = Math.max(u0, u1);
-		for (let k = Math.floor(lo) + 1; k <= Math.floor(hi); k++) {
+		for (let k = Math.floor(lo) + 1; k <= Math.floor(hi) && phase.length < MAX_PHASE_CROSSINGS; k++) {
 			if (k === lo) continue;
 			const target = 2 * Math.PI * k - Math.PI;
 			const x = brentRoot((x) => loopPhase(m, Math.exp(x)) - target, a, b, 1e-14);
@@ -278,14 +302,18 @@ export function findCrossings(m: LoopModel, grid: ArrayLike<number>): { phase: P
  * minimum of |1 + L| on the grid refined by Brent's minimiser, and the limits ω → 0 and ω → ∞.
  * Returns ms null when the curve passes through −1.
  */
-export function maxSensitivity(m: LoopModel, grid: ArrayLike<number>): { ms: number | null; w: number | null; reason?: string } {
+export function maxSensitivity(m: LoopModel, grid: ArrayLike<number>, values?: GridValues): { ms: number | null; w: number | null; reason?: string } {
 	const n = grid.length;
 	const dist = (w: number) => {
 		const l = loopValue(m, w);
 		return Math.hypot(1 + l.re, l.im);
 	};
+	const v = values ?? evaluateLoop(m, grid);
 	const f = new Float64Array(n);
-	for (let i = 0; i < n; i++) f[i] = dist(grid[i]);
+	for (let i = 0; i < n; i++) {
+		const mag = Math.exp(Math.max(-300, Math.min(300, v.lm[i])));
+		f[i] = Math.hypot(1 + mag * Math.cos(v.ph[i]), mag * Math.sin(v.ph[i]));
+	}
 	let best = Infinity;
 	let bestW: number | null = null;
 	for (let i = 0; i < n; i++) {
@@ -318,14 +346,14 @@ export function maxSensitivity(m: LoopModel, grid: ArrayLike<number>): { ms: num
 			bestW = 0;
 		}
 	}
-	if (m.relativeDegree === 0) {
-		const g = Math.abs(m.gain);
-		const dInf = m.delay > 0 ? Math.abs(1 - g) : Math.abs(1 + m.gain);
-		if (dInf < best) {
-			best = dInf;
-			bestW = null;
-			reason = 'The supremum is approached as ω → ∞ (the loop has direct feedthrough).';
-		}
+	// ω → ∞: |S| → 1 for a strictly proper loop; with direct feedthrough L(∞) = k (rotating
+	// with the delay, so the supremum is 1/(1 − |k|)).
+	const g = Math.abs(m.gain);
+	const dInf = m.relativeDegree > 0 ? 1 : m.delay > 0 ? Math.abs(1 - g) : Math.abs(1 + m.gain);
+	if (dInf < best) {
+		best = dInf;
+		bestW = null;
+		reason = m.relativeDegree > 0 ? 'The supremum |S| = 1 is approached as ω → ∞.' : 'The supremum is approached as ω → ∞ (the loop has direct feedthrough).';
 	}
 	if (!(best > 1e-12)) return { ms: null, w: null, reason: 'The Nyquist curve passes through −1 (|1 + L| = 0): the sensitivity is unbounded.' };
 	return { ms: 1 / best, w: bestW, reason };
@@ -338,8 +366,9 @@ export function maxSensitivity(m: LoopModel, grid: ArrayLike<number>): { ms: num
  * min over gain crossovers with PM > 0 of PM[rad]/ω. No phase crossover → GM null ("no phase
  * crossover"); no gain crossover → PM null. PM is wrapped into (−180°, 180°].
  */
-export function stabilityMargins(m: LoopModel, grid: ArrayLike<number>): Margins {
-	const { phase, gain } = findCrossings(m, grid);
+export function stabilityMargins(m: LoopModel, grid: ArrayLike<number>, values?: GridValues): Margins {
+	const v = values ?? evaluateLoop(m, grid);
+	const { phase, gain } = findCrossings(m, grid, v);
 	const reasons: Record<string, string> = {};
 	const out: Margins = {
 		gainMargin: null,
@@ -379,13 +408,13 @@ export function stabilityMargins(m: LoopModel, grid: ArrayLike<number>): Margins
 		if (negative) reasons.delayMargin = 'a gain crossover has no positive phase margin';
 		else out.delayMargin = dm;
 	} else {
-		const above = loopLogMagnitude(m, grid[0]) > 0;
+		const above = v.lm[0] > 0;
 		const why = above ? 'no gain crossover: |L| stays above 1 in the analysed band' : 'no gain crossover: |L| < 1 at all analysed frequencies';
 		reasons.phaseMargin = why;
 		reasons.gainCrossover = why;
 		reasons.delayMargin = above ? why : 'infinite: with |L| < 1 everywhere no dead time can destabilise the loop';
 	}
-	const ms = maxSensitivity(m, grid);
+	const ms = maxSensitivity(m, grid, v);
 	out.ms = ms.ms;
 	out.msFrequency = ms.w;
 	if (ms.ms === null) {

@@ -6,7 +6,7 @@
 import type { Complex, TransferFunction } from './types';
 import type { ControllerTerms } from './controller';
 import { analyzeClosedLoop, DEFAULT_PADE_ORDER, errorConstants, steadyStateErrors, type ClosedLoopReport, type ErrorConstants, type SteadyStateErrors } from './closed-loop';
-import { analysisGrid, bode, frequencyRange, logspace, loopModel, stabilityMargins, type BodeData, type Margins } from './frequency';
+import { analysisGrid, bode, evaluateLoop, frequencyRange, logspace, loopModel, stabilityMargins, type BodeData, type Margins } from './frequency';
 import { disturbanceMetrics, stepMetrics, type DisturbanceMetrics, type StepMetrics } from './metrics';
 import { simulateLoop, type SimulationResult } from './simulation';
 
@@ -135,7 +135,8 @@ export function analyzeLoop(plant: TransferFunction, terms: ControllerTerms, opt
 	const range = frequencyRange(model);
 	const display = logspace(range.wMin, range.wMax, opts.bodePoints ?? 400);
 	const grid = analysisGrid(model, display);
-	const margins = stabilityMargins(model, grid);
+	const values = evaluateLoop(model, grid);
+	const margins = stabilityMargins(model, grid, values);
 	if (!cl.stable && margins.ms !== null) {
 		margins.ms = null;
 		margins.msFrequency = null;
@@ -153,7 +154,7 @@ export function analyzeLoop(plant: TransferFunction, terms: ControllerTerms, opt
 		disturbance: dist,
 		disturbanceReasons,
 		margins,
-		bode: opts.skipBode ? null : bode(model, display),
+		bode: opts.skipBode ? null : grid === display ? bode(model, display, values) : bode(model, display),
 		errorConstants: errorConstants(cl.exact.loopNum, cl.exact.loopDen),
 		steadyState,
 		warnings

@@ -2,8 +2,8 @@
  * Step-response metrics located between samples: rise time 10–90 %, peak and peak time,
  * overshoot and undershoot, settling time (last exit from a ±band·|final| tube), IAE, ISE, ITAE,
  * peak MV; and the corresponding load-disturbance measures. Events are found by cubic Hermite
- * interpolation when dy/dt samples are exact (else linear), integrals are exact for the
- * piecewise-linear interpolant. Definitions follow PRODUCT.md and common practice (e.g. Ogata,
+ * interpolation when dy/dt samples are exact (else linear); integrals by the corrected
+ * trapezoidal rule (plain trapezoidal without derivatives). Definitions follow PRODUCT.md and common practice (e.g. Ogata,
  * Modern Control Engineering, §5-3; python-control `step_info`, but interpolated instead of
  * sample-bound). Nothing here returns NaN or Infinity: a value that does not exist is null with
  * a reason.
@@ -174,19 +174,42 @@ export function lastExit(r: SampledResponse, level: number, halfWidth: number): 
 	return crossingIn(r, k, boundary);
 }
 
-/** ∫|e|, ∫e², ∫t·|e| over the samples, exact for the piecewise-linear interpolant of e. */
-export function errorIntegrals(t: ArrayLike<number>, e: ArrayLike<number>): { iae: number; ise: number; itae: number } {
+/**
+ * ∫|e|, ∫e², ∫t·|e| over the samples: trapezoidal rule on each interval, with the endpoint
+ * derivative correction h²/12·(f′(t0) − f′(t1)) when exact derivatives de are given (exact for
+ * cubics; Davis & Rabinowitz, Methods of Numerical Integration, 2nd ed., §2.9, "corrected
+ * trapezoidal rule"). Intervals where e changes sign are split at the linear zero crossing.
+ */
+export function errorIntegrals(t: ArrayLike<number>, e: ArrayLike<number>, de?: ArrayLike<number> | null): { iae: number; ise: number; itae: number } {
+	// |−e| = |e| and (−e)² = e²: the integrals of e equal those of reference 0 minus e.
+	return trackingIntegrals(t, e, de ?? null, 0);
+}
+
+/** The integrals of `errorIntegrals` for the tracking error e = reference − y (de = −dy). */
+function trackingIntegrals(t: ArrayLike<number>, y: ArrayLike<number>, dy: ArrayLike<number> | null, reference: number): { iae: number; ise: number; itae: number } {
 	let iae = 0;
 	let ise = 0;
 	let itae = 0;
-	for (let k = 0; k < e.length - 1; k++) {
+	const n = y.length;
+	for (let k = 0; k < n - 1; k++) {
 		const t0 = t[k];
 		const t1 = t[k + 1];
 		const h = t1 - t0;
-		const e0 = e[k];
-		const e1 = e[k + 1];
+		const e0 = reference - y[k];
+		const e1 = reference - y[k + 1];
+		const sameSign = e0 >= 0 === e1 >= 0 || e0 === 0 || e1 === 0;
+		if (dy !== null && sameSign) {
+			const s = e0 > 0 || e1 > 0 ? 1 : -1;
+			const d0 = -dy[k];
+			const d1 = -dy[k + 1];
+			const c = (h * h) / 12;
+			iae += s * (0.5 * h * (e0 + e1) + c * (d0 - d1));
+			ise += 0.5 * h * (e0 * e0 + e1 * e1) + c * (2 * e0 * d0 - 2 * e1 * d1);
+			itae += s * (0.5 * h * (t0 * e0 + t1 * e1) + c * (e0 + t0 * d0 - e1 - t1 * d1));
+			continue;
+		}
 		ise += (h * (e0 * e0 + e0 * e1 + e1 * e1)) / 3;
-		if (e0 >= 0 === e1 >= 0 || e0 === 0 || e1 === 0) {
+		if (sameSign) {
 			const a0 = Math.abs(e0);
 			const a1 = Math.abs(e1);
 			iae += 0.5 * h * (a0 + a1);
@@ -225,10 +248,7 @@ export function stepMetrics(
 	mvImpulse = false
 ): { metrics: StepMetrics; reasons: Record<string, string> } {
 	const reasons: Record<string, string> = {};
-	const n = r.y.length;
-	const e = new Float64Array(n);
-	for (let i = 0; i < n; i++) e[i] = reference - r.y[i];
-	const { iae, ise, itae } = errorIntegrals(r.t, e);
+	const { iae, ise, itae } = trackingIntegrals(r.t, r.y, r.dy ?? null, reference);
 	const mv = peakMagnitude(r.t, r.u);
 	const metrics: StepMetrics = {
 		riseTime: null,
@@ -281,9 +301,7 @@ export function stepMetrics(
 export function disturbanceMetrics(r: SampledResponse, finalValue: number, band: number): { metrics: DisturbanceMetrics; reasons: Record<string, string> } {
 	const reasons: Record<string, string> = {};
 	const n = r.y.length;
-	const e = new Float64Array(n);
-	for (let i = 0; i < n; i++) e[i] = -r.y[i];
-	const { iae, ise, itae } = errorIntegrals(r.t, e);
+	const { iae, ise, itae } = trackingIntegrals(r.t, r.y, r.dy ?? null, 0);
 	let maxK = 0;
 	for (let i = 1; i < n; i++) if (Math.abs(r.y[i]) > Math.abs(r.y[maxK])) maxK = i;
 	const sign = r.y[maxK] >= 0 ? 1 : -1;

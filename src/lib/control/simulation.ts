@@ -270,6 +270,7 @@ export function simulateLoop(plant: TransferFunction, terms: ControllerTerms, op
 }
 
 function userGrid(fine: { t: Float64Array; setpoint: ResponseTrace; disturbance: ResponseTrace }, q: number, count: number) {
+	if (q === 1 && count === fine.t.length) return { t: fine.t, setpoint: fine.setpoint, disturbance: fine.disturbance };
 	const t = new Float64Array(count);
 	const pick = (src: Float64Array) => {
 		const out = new Float64Array(count);
@@ -450,6 +451,27 @@ function simulateDelayed(loop: Loop, theta: number, h: number, q: number, points
 	}
 	const nFine = (points - 1) * q + 1;
 	const K = nFine + M; // steps so that the MV of every fine node is known
+	// Contributions of the delayed PV samples y(j−1), y(j), y(j+1) to the next state, with
+	// yA0 = f·y(j−1) + (1−f)·y(j), yA1 = yB0 = y(j), yB1 = f·y(j) + (1−f)·y(j+1).
+	const cm1 = new Float64Array(nz);
+	const c0 = new Float64Array(nz);
+	const cp1 = new Float64Array(nz);
+	const constS = new Float64Array(nz); // r(t − θ) = 1 on both pieces (j ≥ 1)
+	const constD = new Float64Array(nz);
+	const constS0 = new Float64Array(nz); // j = 0: the step (and impulse) arrives at the breakpoint
+	const constD0 = new Float64Array(nz);
+	for (let r = 0; r < nz; r++) {
+		cm1[r] = f * hA0[r];
+		c0[r] = (1 - f) * hA0[r] + hA1[r] + B.y0[r] + f * B.y1[r];
+		cp1[r] = (1 - f) * B.y1[r];
+		constS[r] = hrA[r] + grB[r];
+		constD[r] = hdA[r] + gdB[r];
+		constS0[r] = grB[r] + impulseVec[r];
+		constD0[r] = gdB[r];
+	}
+	// MV of node j from the state at step k = j + M: kzPhiA·z + um1·y(j−1) + u0·y(j) + const.
+	const um1 = kA0 * f;
+	const u0 = kA0 * (1 - f) + kA1 + wy;
 	const Ys = new Float64Array(K + 1);
 	const Yd = new Float64Array(K + 1);
 	const DYs = new Float64Array(K + 1);
@@ -458,44 +480,58 @@ function simulateDelayed(loop: Loop, theta: number, h: number, q: number, points
 	const Ud = new Float64Array(nFine);
 	const zs = new Float64Array(nz);
 	const zd = new Float64Array(nz);
-	const tmp = new Float64Array(nz);
+	const ts = new Float64Array(nz);
+	const td = new Float64Array(nz);
 	const cpe = new Float64Array(nz);
 	for (let c = 0; c < np; c++) cpe[c] = ss.c[c];
+	const uLimit = limit * 1e3;
 	let lastY = K; // last node with y computed
 	let truncatedAt: number | null = null;
 	for (let k = 0; k <= K; k++) {
 		const j = k - M;
-		const yj1s = j - 1 >= 0 ? Ys[j - 1] : 0;
+		const yj1s = j >= 1 ? Ys[j - 1] : 0;
 		const yjs = j >= 0 ? Ys[j] : 0;
-		const yj1d = j - 1 >= 0 ? Yd[j - 1] : 0;
+		const yj1d = j >= 1 ? Yd[j - 1] : 0;
 		const yjd = j >= 0 ? Yd[j] : 0;
-		const yA0s = f * yj1s + (1 - f) * yjs;
-		const yA0d = f * yj1d + (1 - f) * yjd;
 		// Node outputs at t_k (right limits).
 		const stepNow = j >= 1 || (j === 0 && f === 0) ? 1 : 0;
-		const dyDelS = ideal ? f * (j - 1 >= 0 ? DYs[j - 1] : 0) + (1 - f) * (j >= 0 ? DYs[j] : 0) : 0;
-		const dyDelD = ideal ? f * (j - 1 >= 0 ? DYd[j - 1] : 0) + (1 - f) * (j >= 0 ? DYd[j] : 0) : 0;
-		const vs = dot(kz, zs) + wr * stepNow + wy * yA0s + wdy * dyDelS;
-		const vd = dot(kz, zd) + wy * yA0d + wdy * dyDelD + stepNow;
-		let ysk = 0;
-		let ydk = 0;
-		for (let c = 0; c < np; c++) {
-			ysk += cpe[c] * zs[c];
-			ydk += cpe[c] * zd[c];
+		let dyDelS = 0;
+		let dyDelD = 0;
+		if (ideal) {
+			dyDelS = f * (j >= 1 ? DYs[j - 1] : 0) + (1 - f) * (j >= 0 ? DYs[j] : 0);
+			dyDelD = f * (j >= 1 ? DYd[j - 1] : 0) + (1 - f) * (j >= 0 ? DYd[j] : 0);
 		}
-		ysk += dp * vs;
-		ydk += dp * vd;
+		let kzs = 0;
+		let kzd = 0;
+		let cps = 0;
+		let cpd = 0;
+		let mvs = 0;
+		let mvd = 0;
+		let das = 0;
+		let dad = 0;
+		for (let c = 0; c < nz; c++) {
+			const a = zs[c];
+			const b = zd[c];
+			kzs += kz[c] * a;
+			kzd += kz[c] * b;
+			cps += cpe[c] * a;
+			cpd += cpe[c] * b;
+			mvs += kzPhiA[c] * a;
+			mvd += kzPhiA[c] * b;
+			das += cpAp[c] * a;
+			dad += cpAp[c] * b;
+		}
+		const yA0s = f * yj1s + (1 - f) * yjs;
+		const yA0d = f * yj1d + (1 - f) * yjd;
+		const vs = kzs + wr * stepNow + wy * yA0s + wdy * dyDelS;
+		const vd = kzd + wy * yA0d + wdy * dyDelD + stepNow;
+		const ysk = cps + dp * vs;
+		const ydk = cpd + dp * vd;
 		Ys[k] = ysk;
 		Yd[k] = ydk;
 		if (dp === 0) {
-			let a = 0;
-			let b = 0;
-			for (let c = 0; c < np; c++) {
-				a += cpAp[c] * zs[c];
-				b += cpAp[c] * zd[c];
-			}
-			DYs[k] = a + cpBp * vs;
-			DYd[k] = b + cpBp * vd;
+			DYs[k] = das + cpBp * vs;
+			DYd[k] = dad + cpBp * vd;
 		}
 		if (!(Math.abs(ysk) <= limit && Math.abs(ydk) <= limit)) {
 			lastY = Math.max(0, k - 1);
@@ -503,16 +539,13 @@ function simulateDelayed(loop: Loop, theta: number, h: number, q: number, points
 			break;
 		}
 		// MV of node j = w at the breakpoint of this interval.
-		const rsA = j >= 1 ? 1 : 0;
-		const rsB = j >= 0 ? 1 : 0;
-		const yA1s = yjs;
-		const yA1d = yjd;
 		if (j >= 0 && j < nFine) {
-			const dyjS = ideal ? DYs[j] : 0;
-			const dyjD = ideal ? DYd[j] : 0;
-			Us[j] = dot(kzPhiA, zs) + kA0 * yA0s + kA1 * yA1s + krA * rsA + wr + wy * Ys[j] + wdy * dyjS;
-			Ud[j] = dot(kzPhiA, zd) + kA0 * yA0d + kA1 * yA1d + kdA * rsA + wy * Yd[j] + wdy * dyjD;
-			if (!(Math.abs(Us[j]) <= limit * 1e3 && Math.abs(Ud[j]) <= limit * 1e3)) {
+			const rsA = j >= 1 ? 1 : 0;
+			const us = mvs + um1 * yj1s + u0 * yjs + krA * rsA + wr + (ideal ? wdy * DYs[j] : 0);
+			const ud = mvd + um1 * yj1d + u0 * yjd + kdA * rsA + (ideal ? wdy * DYd[j] : 0);
+			Us[j] = us;
+			Ud[j] = ud;
+			if (!(Math.abs(us) <= uLimit && Math.abs(ud) <= uLimit)) {
 				lastY = Math.max(0, k - 1);
 				truncatedAt = k * h;
 				break;
@@ -521,14 +554,26 @@ function simulateDelayed(loop: Loop, theta: number, h: number, q: number, points
 		if (k === K) break;
 		const yjp1s = j + 1 >= 0 ? Ys[j + 1] : 0;
 		const yjp1d = j + 1 >= 0 ? Yd[j + 1] : 0;
-		const yB1s = f * yjs + (1 - f) * yjp1s;
-		const yB1d = f * yjd + (1 - f) * yjp1d;
-		matVecInto(phi, nz, zs, tmp);
-		const imp = j === 0 ? 1 : 0;
-		for (let r = 0; r < nz; r++)
-			zs[r] = tmp[r] + hA0[r] * yA0s + hA1[r] * yA1s + hrA[r] * rsA + impulseVec[r] * imp + B.y0[r] * yjs + B.y1[r] * yB1s + grB[r] * rsB;
-		matVecInto(phi, nz, zd, tmp);
-		for (let r = 0; r < nz; r++) zd[r] = tmp[r] + hA0[r] * yA0d + hA1[r] * yA1d + hdA[r] * rsA + B.y0[r] * yjd + B.y1[r] * yB1d + gdB[r] * rsB;
+		const kS = j >= 1 ? constS : j === 0 ? constS0 : null;
+		const kD = j >= 1 ? constD : j === 0 ? constD0 : null;
+		for (let r = 0; r < nz; r++) {
+			let a = cm1[r] * yj1s + c0[r] * yjs + cp1[r] * yjp1s;
+			let b = cm1[r] * yj1d + c0[r] * yjd + cp1[r] * yjp1d;
+			if (kS !== null && kD !== null) {
+				a += kS[r];
+				b += kD[r];
+			}
+			const o = r * nz;
+			for (let c = 0; c < nz; c++) {
+				const p = phi[o + c];
+				a += p * zs[c];
+				b += p * zd[c];
+			}
+			ts[r] = a;
+			td[r] = b;
+		}
+		zs.set(ts);
+		zd.set(td);
 	}
 	// Fine nodes with both PV and MV known.
 	const validFine = truncatedAt === null ? nFine : Math.max(1, Math.min(nFine, lastY - M + 1));

@@ -1,0 +1,127 @@
+import { describe, expect, it } from 'vitest';
+import fc from 'fast-check';
+import { analysisGrid, bode, frequencyRange, logspace, loopModel, stabilityMargins } from './frequency';
+import { controllerPolynomials, controllerTerms } from './controller';
+import { polyMul } from './polynomial';
+import type { ControllerSettings } from './types';
+
+function loopOf(num: number[], den: number[], delay: number, c: ControllerSettings) {
+	const { nc, dc } = controllerPolynomials(controllerTerms(c));
+	return loopModel(polyMul(nc, num), polyMul(dc, den), delay);
+}
+function margins(num: number[], den: number[], delay: number, c: ControllerSettings) {
+	const m = loopOf(num, den, delay, c);
+	const r = frequencyRange(m);
+	return stabilityMargins(m, analysisGrid(m, logspace(r.wMin, r.wMax, 400)));
+}
+
+describe('Bode data', () => {
+	it('first order 1/(s+1) at the corner: −3.0103 dB, −45° (standard, e.g. Ogata §7-2)', () => {
+		const b = bode(loopModel([1], [1, 1]), [1]);
+		expect(b.magDb[0]).toBeCloseTo(-10 * Math.log10(2), 12);
+		expect(b.phaseDeg[0]).toBeCloseTo(-45, 12);
+	});
+	it('adds the exact delay phase −ωθ and unwraps: e^(−s)/(s+1) at ω = 10 is −84.29° − 572.96°', () => {
+		const b = bode(loopModel([1], [1, 1], 1), [10]);
+		expect(b.phaseDeg[0]).toBeCloseTo((-Math.atan(10) * 180) / Math.PI - (10 * 180) / Math.PI, 10);
+	});
+	it('starts near 0, −90, −180, −270° for types 0…3', () => {
+		for (let type = 0; type <= 3; type++) {
+			const den = [1, 1, ...Array(type).fill(0)];
+			const b = bode(loopModel([1], den), [1e-4]);
+			expect(b.phaseDeg[0]).toBeCloseTo(-90 * type, 1);
+		}
+	});
+	it('keeps a continuous phase through a lightly damped resonance', () => {
+		const m = loopModel([1], [1, 0.02, 1]);
+		const w = logspace(0.1, 10, 400);
+		const b = bode(m, w);
+		for (let i = 1; i < w.length; i++) expect(Math.abs(b.phaseDeg[i] - b.phaseDeg[i - 1])).toBeLessThan(90);
+		expect(b.phaseDeg[w.length - 1]).toBeCloseTo(-180, 0);
+	});
+});
+
+describe('margins against published and exact values', () => {
+	it('SIMC PI on an FOPDT with τc = θ, τ1 ≤ 8θ: GM = π at π/(2θ), PM = 61.3521° at 1/(2θ), Ms = 1.590490, delay margin 2.141593θ (Skogestad 2003, paper values 3.14, 61.4°, 1.59 from memory; exact [C] values of CONTROL-REFERENCE W5)', () => {
+		const theta = 0.8;
+		const m = margins([1], [4, 1], theta, { type: 'PI', kp: 4 / (2 * theta), ti: 4 });
+		expect(m.gainMargin as number).toBeCloseTo(Math.PI, 10);
+		expect(m.phaseCrossover as number).toBeCloseTo(Math.PI / (2 * theta), 10);
+		expect(m.phaseMargin as number).toBeCloseTo(61.3521, 4);
+		expect(m.gainCrossover as number).toBeCloseTo(1 / (2 * theta), 10);
+		expect(m.ms as number).toBeCloseTo(1.59049, 5);
+		expect((m.msFrequency as number) * theta).toBeCloseTo(1.1442, 3);
+		expect((m.delayMargin as number) / theta).toBeCloseTo(2.141593, 6);
+	});
+	it('SIMC PI on an IPDT (Ti = 8θ): GM 2.963402, PM 46.8643°, Ms 1.703522, delay margin 1.589637θ (Skogestad 2003 [M]; W6 [C])', () => {
+		const theta = 2;
+		const kv = 0.5;
+		const m = margins([kv], [1, 0], theta, { type: 'PI', kp: 1 / (2 * kv * theta), ti: 8 * theta });
+		expect(m.gainMargin as number).toBeCloseTo(2.963402, 6);
+		expect((m.phaseCrossover as number) * theta).toBeCloseTo(1.486928, 6);
+		expect(m.phaseMargin as number).toBeCloseTo(46.8643, 4);
+		expect((m.gainCrossover as number) * theta).toBeCloseTo(0.514543, 6);
+		expect(m.ms as number).toBeCloseTo(1.703522, 6);
+		expect((m.delayMargin as number) / theta).toBeCloseTo(1.589637, 6);
+	});
+	it('PI rules on the FOPDT K = 1.2, τ = 4, θ = 0.8: AMIGO (1.00463, 3.10609) GM 6.328, PM 67.52°, Ms 1.2638; ZN step (3.75, 2.4) GM 1.623, PM 28.91°, Ms 3.088 (CONTROL-REFERENCE table after 2.11, [C])', () => {
+		const amigo = margins([1.2], [4, 1], 0.8, { type: 'PI', kp: 1.00463, ti: 3.10609 });
+		expect(amigo.gainMargin as number).toBeCloseTo(6.328, 3);
+		expect(amigo.phaseMargin as number).toBeCloseTo(67.52, 2);
+		expect(amigo.ms as number).toBeCloseTo(1.2638, 4);
+		const zn = margins([1.2], [4, 1], 0.8, { type: 'PI', kp: 3.75, ti: 2.4 });
+		expect(zn.gainMargin as number).toBeCloseTo(1.623, 3);
+		expect(zn.phaseMargin as number).toBeCloseTo(28.91, 2);
+		expect(zn.ms as number).toBeCloseTo(3.088, 3);
+	});
+	it('Ogata’s 1/(s(s+1)(s+5)): phase crossover at √5 with GM = 30/K (Ku = 30; Ogata ZN example, W7)', () => {
+		const m = margins([1], [1, 6, 5, 0], 0, { type: 'P', kp: 10 });
+		expect(m.phaseCrossover as number).toBeCloseTo(Math.sqrt(5), 10);
+		expect(m.gainMargin as number).toBeCloseTo(3, 10);
+		expect(m.gainMarginDb as number).toBeCloseTo(20 * Math.log10(3), 10);
+	});
+	it('an integrator k/s: PM 90° at ω = k, no phase crossover → GM null with the reason', () => {
+		const m = margins([2], [1, 0], 0, { type: 'P', kp: 1 });
+		expect(m.gainCrossover as number).toBeCloseTo(2, 12);
+		expect(m.phaseMargin as number).toBeCloseTo(90, 10);
+		expect(m.gainMargin).toBeNull();
+		expect(m.reasons.gainMargin).toMatch(/no phase crossover/);
+	});
+	it('|L| < 1 everywhere: PM null, delay margin null with "infinite"', () => {
+		const m = margins([0.5], [1, 1], 0, { type: 'P', kp: 1 });
+		expect(m.phaseMargin).toBeNull();
+		expect(m.reasons.delayMargin).toMatch(/infinite/);
+		expect(m.ms as number).toBeCloseTo(1, 6);
+	});
+	it('lists all crossings of a lightly damped loop (two gain crossovers around the resonance)', () => {
+		// L = 0.3/(s² + 0.04 s + 1): |L| peaks at 7.5 near ω = 1, so |L| crosses 1 twice.
+		const m = margins([0.3], [1, 0.04, 1], 0, { type: 'P', kp: 1 });
+		expect(m.gainCrossings).toHaveLength(2);
+		const [a, b] = m.gainCrossings.map((g) => g.w).sort((x, y) => x - y);
+		// |L(jω)| = 1 ⇔ (1 − ω²)² + (0.04ω)² = 0.09 (solved exactly).
+		const check = (w: number) => Math.abs((1 - w * w) ** 2 + (0.04 * w) ** 2 - 0.09);
+		expect(check(a)).toBeLessThan(1e-10);
+		expect(check(b)).toBeLessThan(1e-10);
+	});
+});
+
+describe('margins: properties', () => {
+	it('Ms bounds the margins: GM ≥ Ms/(Ms − 1), PM ≥ 2·arcsin(1/(2Ms)) (geometric result, CONTROL-REFERENCE 5.3 [M, formula checked C])', () => {
+		fc.assert(
+			fc.property(
+				fc.double({ min: 0.5, max: 10, noNaN: true }),
+				fc.double({ min: 0.5, max: 10, noNaN: true }),
+				fc.double({ min: 0.05, max: 3, noNaN: true }),
+				fc.double({ min: 0.1, max: 5, noNaN: true }),
+				fc.double({ min: 0.5, max: 20, noNaN: true }),
+				(k, tau, theta, kp, ti) => {
+					const m = margins([k], [tau, 1], theta, { type: 'PI', kp, ti });
+					if (m.ms === null) return;
+					if (m.gainMargin !== null && m.gainMargin > 1) expect(m.gainMargin).toBeGreaterThanOrEqual((m.ms / (m.ms - 1)) * (1 - 1e-9));
+					if (m.phaseMargin !== null && m.phaseMargin > 0) expect(m.phaseMargin).toBeGreaterThanOrEqual(((2 * Math.asin(1 / (2 * m.ms)) * 180) / Math.PI) * (1 - 1e-9));
+				}
+			),
+			{ numRuns: 200, seed: 3 }
+		);
+	});
+});
