@@ -17,7 +17,7 @@ export const load = (async (event) => {
 	const view = await orHttpError(getTuningSet(acting, Number(event.params.id)));
 	const t = view.tuningSet;
 	let why: string | null = null;
-	if (t.state === 'in_review' && can(acting.user.role, 'model.read_draft') && !view.allowed.approve) {
+	if (t.state === 'in_review' && (can(acting.user.role, 'tuning.review') || acting.user.role === 'admin') && !view.allowed.approve) {
 		const d = decide('approve', {
 			subject: 'tuning_set',
 			role: acting.user.role,

@@ -42,9 +42,9 @@ export const load = (async (event) => {
 	const comparison = approvedId !== null && approvedId !== r.id ? await orHttpError(diffRevisions(acting, approvedId, r.id)) : null;
 
 	// Why a reviewer-side action is not offered, in the state machine's own words (only where the
-	// reader could otherwise expect it: a revision in review, a reader who is not a plain viewer).
+	// reader could otherwise expect it: a revision in review, read by a reviewer or an administrator).
 	const why: Partial<Record<Transition, string>> = {};
-	if (r.state === 'in_review' && can(acting.user.role, 'model.read_draft') && !view.allowed.approve) {
+	if (r.state === 'in_review' && (can(acting.user.role, 'revision.review') || acting.user.role === 'admin') && !view.allowed.approve) {
 		const d = decide('approve', {
 			role: acting.user.role,
 			actorId: acting.user.id,
