@@ -23,9 +23,9 @@ import { logScaleAround, niceStep, plantEffectiveGain, plantTimeScale, positionO
 import { rulePlantFor, ruleRows } from './rules';
 
 /** Samples of the bench's time responses (the engine's metrics use its finer internal grid). */
-export const BENCH_POINTS = 1000;
+export const BENCH_POINTS = 600;
 /** Points of the Bode plot. */
-export const BODE_POINTS = 300;
+export const BODE_POINTS = 200;
 /** Values per pole-sweep trail. */
 export const SWEEP_COUNT = 41;
 /** At most this many tuning sets on the comparison plot. */

@@ -17,15 +17,19 @@ export interface JobMessage {
 	request: AnalysisRequest;
 }
 
-/** The worker's answer; `computeMs` is the time `analyze` took (ms). */
+/**
+ * The worker's answer; `computeMs` is the time `analyze` took and `startedAt` when it started
+ * (ms since the epoch, performance.timeOrigin + performance.now(), comparable across the page
+ * and its workers) — for the bench's input-to-redraw measurement.
+ */
 export type JobResult =
-	| { id: number; kind: JobKind; key?: string; ok: true; response: AnalysisResponse; computeMs: number }
-	| { id: number; kind: JobKind; key?: string; ok: false; field: string; message: string; computeMs: number };
+	| { id: number; kind: JobKind; key?: string; ok: true; response: AnalysisResponse; computeMs: number; startedAt: number }
+	| { id: number; kind: JobKind; key?: string; ok: false; field: string; message: string; computeMs: number; startedAt: number };
 
 /** Runs `analyze` on the job's request; input errors come back with their field, other failures with a plain message. */
 export function runJob(msg: JobMessage, now: () => number = () => performance.now()): JobResult {
 	const t0 = now();
-	const head = { id: msg.id, kind: msg.kind, ...(msg.key !== undefined ? { key: msg.key } : {}) };
+	const head = { id: msg.id, kind: msg.kind, ...(msg.key !== undefined ? { key: msg.key } : {}), startedAt: performance.timeOrigin + t0 };
 	try {
 		const response = analyze(msg.request);
 		return { ...head, ok: true, response, computeMs: now() - t0 };

@@ -74,6 +74,33 @@ describe('AnalysisRunner', () => {
 		expect(got).toHaveLength(1);
 	});
 
+	it('runs jobs inline on the main thread once the recent ones were fast enough, and says so', async () => {
+		const fake = new FakeWorker();
+		const got: RunnerResult<unknown>[] = [];
+		const runner = new AnalysisRunner((r) => got.push(r), () => fake as unknown as Worker, { inlineBelowMs: 10_000 });
+		for (let i = 0; i < 3; i++) {
+			expect(runner.inline).toBe(false);
+			runner.schedule('main', request(1 + i));
+			fake.answer();
+		}
+		expect(runner.inline).toBe(true);
+		runner.schedule('main', request(1.5));
+		expect(fake.sent).toHaveLength(0);
+		await Promise.resolve();
+		expect(got.map((r) => r.ranInline)).toEqual([false, false, false, true]);
+		expect(got[3].ok && got[3].response.closedLoop.stable).toBe(true);
+	});
+
+	it('stays in the worker when the recent jobs were slower than the budget', () => {
+		const fake = new FakeWorker();
+		const runner = new AnalysisRunner(() => undefined, () => fake as unknown as Worker, { inlineBelowMs: 0 });
+		for (let i = 0; i < 4; i++) {
+			runner.schedule('main', request(1));
+			fake.answer();
+		}
+		expect(runner.inline).toBe(false);
+	});
+
 	it('computes on the main thread when there is no worker', async () => {
 		const got: RunnerResult<unknown>[] = [];
 		const runner = new AnalysisRunner((r) => got.push(r), () => null);
