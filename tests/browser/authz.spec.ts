@@ -14,6 +14,9 @@ import { readdirSync } from 'node:fs';
 import { join, relative, sep } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { DEMO_USERS } from '../../src/lib/server/seed/demo-users';
+import { PlantModel, TuningSet } from '../../src/lib/server/db/models';
+import { createRevision, discardRevision, requestChanges, revisionTemplate, submitForReview } from '../../src/lib/server/revisions';
+import { actingByEmail, closeServices, quietApprovedModel } from '../helpers/review';
 
 const BASE_URL = process.env.BASE_URL;
 if (!BASE_URL) throw new Error('BASE_URL is not set: run through `npm test`, or start the server and set BASE_URL.');
@@ -77,6 +80,39 @@ const TABLE: Record<string, Case[]> = {
 		// admin, so other tests keep their data); everyone else is refused before anything happens.
 		{ method: 'POST', path: '/admin/users?/role', form: { userId: '{user}', role: 'viewer' }, expect: adminOnly(200) }
 	],
+	// Review screens (issue 5). {rev} is the approved revision of {model}; {ownRev} is a revision in
+	// review written by the demo reviewer (of model {ownModel}); {tuningSet} is an approved tuning set.
+	// Forms post real values, so every refusal below comes from the permission or state check.
+	'/(app)/review': [{ method: 'GET', path: '/review', expect: { signedOut: 303, viewer: 403, engineer: 200, reviewer: 200, admin: 200 } }],
+	'/(app)/review/tuning-sets/[id=id]': [
+		{ method: 'GET', path: '/review/tuning-sets/{tuningSet}', expect: signedIn(200) },
+		// Viewers and engineers may not approve, administrators never do; a reviewer is refused by state (already approved).
+		{ method: 'POST', path: '/review/tuning-sets/{tuningSet}?/approve', form: { comment: 'ok' }, expect: { signedOut: 303, viewer: 403, engineer: 403, reviewer: 409, admin: 403 } }
+	],
+	'/(app)/models/[id=id]/history': [{ method: 'GET', path: '/models/{model}/history', expect: signedIn(200) }],
+	'/(app)/models/[id=id]/revisions/[rev=id]': [
+		{ method: 'GET', path: '/models/{model}/revisions/{rev}', expect: signedIn(200) },
+		{ method: 'POST', path: '/models/{model}/revisions/{rev}?/approve', form: { comment: 'ok' }, expect: { signedOut: 303, viewer: 403, engineer: 403, reviewer: 409, admin: 403 } },
+		{ method: 'POST', path: '/models/{model}/revisions/{rev}?/submit', form: {}, expect: { signedOut: 303, viewer: 403, engineer: 409, reviewer: 409, admin: 403 } },
+		{ method: 'POST', path: '/models/{model}/revisions/{rev}?/discard', form: {}, expect: { signedOut: 303, viewer: 403, engineer: 409, reviewer: 409, admin: 403 } },
+		// A date in the past: allowed roles get past the permission check and are refused on the date (nothing written).
+		{ method: 'POST', path: '/models/{model}/revisions/{rev}?/revalidate', form: { revalidateBy: '2001-01-01' }, expect: { signedOut: 303, viewer: 403, engineer: 403, reviewer: 422, admin: 403 } },
+		// The reviewer's own revision: four-eyes refuses them; the viewer cannot even see a draft (404).
+		{ method: 'POST', path: '/models/{ownModel}/revisions/{ownRev}?/approve', form: { comment: 'self-approval attempt' }, expect: { signedOut: 303, viewer: 404, engineer: 403, reviewer: 403, admin: 403 } },
+		{ method: 'POST', path: '/models/{ownModel}/revisions/{ownRev}?/requestChanges', form: { comment: 'self review' }, expect: { signedOut: 303, viewer: 404, engineer: 403, reviewer: 403, admin: 403 } },
+		// A revision id of another model is not found under this model's address.
+		{ method: 'GET', path: '/models/{model}/revisions/{ownRev}', expect: { signedOut: 303, viewer: 404, engineer: 404, reviewer: 404, admin: 404 } }
+	],
+	'/(app)/admin/audit': [{ method: 'GET', path: '/admin/audit', expect: adminOnly(200) }],
+	'/(app)/admin/audit/export.csv': [
+		{ method: 'GET', path: '/admin/audit/export.csv', expect: adminOnly(200) },
+		{ method: 'GET', path: '/admin/audit/export.csv?from=2026-02-30', expect: adminOnly(400) }
+	],
+	'/(app)/admin/mail': [
+		{ method: 'GET', path: '/admin/mail', expect: adminOnly(200) },
+		{ method: 'POST', path: '/admin/mail?/retry', form: { id: 'none' }, expect: adminOnly(400) }
+	],
+	'/(app)/admin/mail/[id=id]': [{ method: 'GET', path: '/admin/mail/999999999', expect: adminOnly(404) }],
 	'/theme': [{ method: 'POST', path: '/theme', form: { theme: 'light', returnTo: '/register' }, expect: everyone(303) }],
 	// The JSON API (engine engineers): the calculator is for every signed-in role.
 	'/api/v1/analysis': [
@@ -115,6 +151,7 @@ function discoverRoutes(): string[] {
 const cookies: Partial<Record<Who, string>> = {};
 const ids: Record<string, string> = {};
 let viewerUserId = '';
+let ownRevision: { modelId: number; revisionId: number; acting: Awaited<ReturnType<typeof actingByEmail>> } | null = null;
 
 async function request(who: Who, c: Pick<Case, 'method' | 'form' | 'json'> & { path: string }, extra: Record<string, string> = {}): Promise<Response> {
 	const headers: Record<string, string> = { Accept: 'text/html', Origin: ORIGIN, ...extra };
@@ -179,6 +216,18 @@ beforeAll(async () => {
 	ids.asset =
 		(await linkIds('viewer', '/register', /href="\/assets\/(\d+)"/g))[0] ??
 		(await linkIds('viewer', `/areas/${ids.area}`, /href="\/assets\/(\d+)"/g))[0];
+	// Review screens: the approved revision of {model}, an approved tuning set, and a revision in
+	// review written by the demo reviewer (through the services, as the reviewer would through the pages).
+	const reviewerActing = await actingByEmail(DEMO_USERS.find((u) => u.role === 'reviewer')!.email);
+	ids.rev = String((await PlantModel.findByPk(Number(ids.model)))?.approved_revision_id ?? '');
+	ids.tuningSet = String((await TuningSet.findOne({ where: { state: 'approved' }, order: [['id', 'ASC']] }))?.id ?? '');
+	const quiet = await quietApprovedModel(['fopdt', 'sopdt', 'ipdt'], [Number(ids.model)]);
+	const template = await revisionTemplate(reviewerActing, quiet.modelId);
+	const own = await createRevision(reviewerActing, quiet.modelId, { ...template.values, changeSummary: 'Authorisation test: a revision by the reviewer.' });
+	await submitForReview(reviewerActing, own.revision.id);
+	ownRevision = { modelId: quiet.modelId, revisionId: own.revision.id, acting: reviewerActing };
+	ids.ownModel = String(quiet.modelId);
+	ids.ownRev = String(own.revision.id);
 	// The demo viewer's id, from their row on the users page.
 	const viewer = DEMO_USERS.find((u) => u.role === 'viewer')!;
 	const usersPage = await (await request('admin', { method: 'GET', path: '/admin/users' })).text();
@@ -186,8 +235,15 @@ beforeAll(async () => {
 	viewerUserId = row?.match(/name="userId" value="(\d+)"/)?.[1] ?? '';
 }, 60_000);
 
-afterAll(() => {
+afterAll(async () => {
 	for (const k of Object.keys(cookies)) delete cookies[k as Who];
+	// Put the reviewer's test revision out of the way: another reviewer sends it back, its author discards it.
+	if (ownRevision) {
+		const other = await actingByEmail(DEMO_USERS.filter((u) => u.role === 'reviewer')[1].email);
+		await requestChanges(other, ownRevision.revisionId, { comment: 'Authorisation test revision: not for use.' });
+		await discardRevision(ownRevision.acting, ownRevision.revisionId, { comment: 'Authorisation test revision.' });
+	}
+	await closeServices();
 });
 
 describe('every route is in the authorisation table', () => {
