@@ -446,6 +446,9 @@ CASES = [
     ('negative-gain-pi', {'num': [-2.0], 'den': [3.0, 1.0]}, {'type': 'PI', 'kp': -0.8, 'ti': 3.0}),
     ('ideal-pid-derivative-on-error', {'num': [1.0], 'den': [1.0, 6.0, 5.0, 0.0]}, {'type': 'PID', 'kp': 18.0, 'ti': 1.405, 'td': 0.35124, 'c': 1.0}),
     ('p-weight-b', lags([2.0, 1.0]), {'type': 'PI', 'kp': 2.0, 'ti': 3.0, 'b': 0.0}),
+    ('pi-parallel', lags([3.0, 0.5], k=2.0), {'type': 'PI', 'form': 'parallel', 'kp': 1.1, 'ki': 0.4}),
+    ('pd-ideal-derivative', lags([2.0, 1.0, 0.5]), {'type': 'PD', 'kp': 1.5, 'td': 0.6}),
+    ('pid-parallel-ideal-derivative', lags([2.0, 1.0, 0.5]), {'type': 'PID', 'form': 'parallel', 'kp': 1.5, 'ki': 0.5, 'kd': 0.8}),
     # With dead time.
     ('fopdt-pi-simc', fopdt(1.2, 4.0, 0.8), {'type': 'PI', 'kp': 2.0833333333333335, 'ti': 4.0}),
     ('fopdt-pi-amigo', fopdt(1.2, 4.0, 0.8), {'type': 'PI', 'kp': 1.00463, 'ti': 3.10609}),

@@ -1,7 +1,7 @@
 /**
  * Step-response metrics located between samples: rise time 10–90 %, peak and peak time,
- * overshoot and undershoot, settling time (last exit from a ±band·|final| tube), IAE, ISE, ITAE,
- * peak MV; and the corresponding load-disturbance measures. Events are found by cubic Hermite
+ * overshoot and undershoot, settling time (last exit from a ±band·|final| tube), IAE, ISE, ITAE;
+ * peak MV (largest sample: the MV jumps at events); and the corresponding load-disturbance measures. Events are found by cubic Hermite
  * interpolation when dy/dt samples are exact (else linear); integrals by the corrected
  * trapezoidal rule (plain trapezoidal without derivatives). Definitions follow PRODUCT.md and common practice (e.g. Ogata,
  * Modern Control Engineering, §5-3; python-control `step_info`, but interpolated instead of
@@ -227,6 +227,10 @@ function trackingIntegrals(t: ArrayLike<number>, y: ArrayLike<number>, dy: Array
 	return { iae, ise, itae };
 }
 
+/**
+ * The MV sample of largest magnitude (signed) and its time. Not interpolated: the MV jumps at the
+ * set-point step and at dead-time events, where a fitted curve would overshoot the jump.
+ */
 function peakMagnitude(t: ArrayLike<number>, u: ArrayLike<number>): { value: number; time: number } {
 	let k = 0;
 	for (let i = 1; i < u.length; i++) if (Math.abs(u[i]) > Math.abs(u[k])) k = i;

@@ -164,9 +164,12 @@ function recoverMultipleRoots(p: readonly number[], r: Complex[]): Complex[] {
 	const n = r.length;
 	const final = new Array<boolean>(n).fill(false);
 	const out = r.slice();
-	// Derivatives p, p′, p″, … computed once.
-	const derivs: number[][] = [p.slice()];
-	for (let k = 1; k < n; k++) derivs.push(polyDerivative(derivs[k - 1]));
+	// Derivatives p, p′, p″, … computed on first use.
+	const derivList: number[][] = [p.slice()];
+	const deriv = (k: number): number[] => {
+		while (derivList.length <= k) derivList.push(polyDerivative(derivList[derivList.length - 1]));
+		return derivList[k];
+	};
 	for (const rel of CLUSTER_THRESHOLDS) {
 		// Single-linkage groups among roots not yet finalised.
 		const group = new Array<number>(n).fill(-1);
@@ -207,8 +210,8 @@ function recoverMultipleRoots(p: readonly number[], r: Complex[]): Complex[] {
 			// the largest one that the derivatives confirm.
 			let accepted: { c: Complex; mult: number } | null = null;
 			for (let mult = Math.min(n, m + 3); mult >= m && !accepted; mult--) {
-				const c = newtonOnDerivative(derivs[mult - 1], cr, ci);
-				if (c && vanishesTo(derivs, mult, c, p.length)) accepted = { c, mult };
+				const c = newtonOnDerivative(deriv(mult - 1), cr, ci);
+				if (c && vanishesTo(deriv, mult, c, p.length)) accepted = { c, mult };
 			}
 			if (!accepted) continue;
 			const { c, mult } = accepted;
@@ -229,9 +232,9 @@ function recoverMultipleRoots(p: readonly number[], r: Complex[]): Complex[] {
 }
 
 /** True when p, p′, …, p^(m−1) all vanish at c to within 8·(n+1)·ε times their Horner magnitude. */
-function vanishesTo(derivs: readonly number[][], m: number, c: Complex, len: number): boolean {
+function vanishesTo(deriv: (k: number) => number[], m: number, c: Complex, len: number): boolean {
 	for (let k = 0; k < m; k++) {
-		const d = derivs[k];
+		const d = deriv(k);
 		let mag = 0;
 		const az = Math.hypot(c.re, c.im);
 		for (let i = 0; i < d.length; i++) mag = mag * az + Math.abs(d[i]);

@@ -14,15 +14,17 @@
  * Without dead time the closed loop is discretised exactly (zero-order hold of the constant
  * step input is exact).
  *
- * Grid: the user grid has `points` samples on [0, tEnd]. The internal step h = Δ/q with Δ the
- * user spacing and q the smallest integer with h ≤ θ (needed by the explicit delay line), at most
- * 64; a dead time below Δ/64 is neglected in the time response (with a note).
+ * Grid: the user grid has `points` samples on [0, tEnd]. With dead time the internal step is
+ * h = Δ/q with Δ the user spacing and q the smallest integer with h ≤ θ (needed by the explicit
+ * delay line) and h·|p| ≤ 2 for the fastest plant pole p, at most 64; a dead time below Δ/64 is
+ * neglected in the time response (with a note). Without dead time h = Δ (exact at any step).
  */
 import type { TransferFunction } from './types';
 import type { ControllerTerms } from './controller';
 import { AnalysisInputError } from './errors';
 import { balance, expm, zeros, type Matrix } from './linalg';
 import { polyTrim } from './polynomial';
+import { roots } from './roots';
 
 /** Controllable-canonical state-space realisation (A, B, C, D) of a proper num/den, balanced. */
 export interface StateSpace {
@@ -256,7 +258,12 @@ export function simulateLoop(plant: TransferFunction, terms: ControllerTerms, op
 	let q = 1;
 	let useDelay = theta > 0;
 	if (useDelay) {
+		// h ≤ θ (explicit delay line) and h·|p| ≤ 2 for the fastest plant pole p, so the
+		// interpolated delayed PV follows the fastest plant mode.
+		let fastest = 0;
+		for (const p of roots(plant.den)) fastest = Math.max(fastest, Math.hypot(p.re, p.im));
 		q = Math.max(1, Math.ceil(dt / theta - 1e-9));
+		if (q <= maxSub) q = Math.min(maxSub, Math.max(q, Math.ceil((dt * fastest) / 2 - 1e-9)));
 		if (q > maxSub) {
 			useDelay = false;
 			q = 1;
@@ -460,6 +467,7 @@ function simulateDelayed(loop: Loop, theta: number, h: number, q: number, points
 	const constD = new Float64Array(nz);
 	const constS0 = new Float64Array(nz); // j = 0: the step (and impulse) arrives at the breakpoint
 	const constD0 = new Float64Array(nz);
+	const zeroVec = new Float64Array(nz);
 	for (let r = 0; r < nz; r++) {
 		cm1[r] = f * hA0[r];
 		c0[r] = (1 - f) * hA0[r] + hA1[r] + B.y0[r] + f * B.y1[r];
@@ -509,17 +517,24 @@ function simulateDelayed(loop: Loop, theta: number, h: number, q: number, points
 		let mvd = 0;
 		let das = 0;
 		let dad = 0;
-		for (let c = 0; c < nz; c++) {
+		// Kz acts on the controller states only, Cp and Cp·Ap on the plant states only.
+		for (let c = 0; c < np; c++) {
+			const a = zs[c];
+			const b = zd[c];
+			cps += cpe[c] * a;
+			cpd += cpe[c] * b;
+			das += cpAp[c] * a;
+			dad += cpAp[c] * b;
+			mvs += kzPhiA[c] * a;
+			mvd += kzPhiA[c] * b;
+		}
+		for (let c = np; c < nz; c++) {
 			const a = zs[c];
 			const b = zd[c];
 			kzs += kz[c] * a;
 			kzd += kz[c] * b;
-			cps += cpe[c] * a;
-			cpd += cpe[c] * b;
 			mvs += kzPhiA[c] * a;
 			mvd += kzPhiA[c] * b;
-			das += cpAp[c] * a;
-			dad += cpAp[c] * b;
 		}
 		const yA0s = f * yj1s + (1 - f) * yjs;
 		const yA0d = f * yj1d + (1 - f) * yjd;
@@ -554,15 +569,11 @@ function simulateDelayed(loop: Loop, theta: number, h: number, q: number, points
 		if (k === K) break;
 		const yjp1s = j + 1 >= 0 ? Ys[j + 1] : 0;
 		const yjp1d = j + 1 >= 0 ? Yd[j + 1] : 0;
-		const kS = j >= 1 ? constS : j === 0 ? constS0 : null;
-		const kD = j >= 1 ? constD : j === 0 ? constD0 : null;
+		const kS = j >= 1 ? constS : j === 0 ? constS0 : zeroVec;
+		const kD = j >= 1 ? constD : j === 0 ? constD0 : zeroVec;
 		for (let r = 0; r < nz; r++) {
-			let a = cm1[r] * yj1s + c0[r] * yjs + cp1[r] * yjp1s;
-			let b = cm1[r] * yj1d + c0[r] * yjd + cp1[r] * yjp1d;
-			if (kS !== null && kD !== null) {
-				a += kS[r];
-				b += kD[r];
-			}
+			let a = cm1[r] * yj1s + c0[r] * yjs + cp1[r] * yjp1s + kS[r];
+			let b = cm1[r] * yj1d + c0[r] * yjd + cp1[r] * yjp1d + kD[r];
 			const o = r * nz;
 			for (let c = 0; c < nz; c++) {
 				const p = phi[o + c];
