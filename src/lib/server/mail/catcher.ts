@@ -210,6 +210,8 @@ export function sanitiseMailHtml(html: string): string {
 		allowedTags: ['p', 'br', 'div', 'span', 'h1', 'h2', 'h3', 'strong', 'b', 'em', 'i', 'ul', 'ol', 'li', 'table', 'thead', 'tbody', 'tr', 'th', 'td', 'a', 'code', 'pre'],
 		allowedAttributes: { a: ['href', 'rel', 'target'] },
 		allowedSchemes: ['http', 'https', 'mailto'],
+		// The document title (and anything else in <head>) is not body text.
+		nonTextTags: ['script', 'style', 'textarea', 'option', 'noscript', 'title', 'head'],
 		transformTags: { a: sanitizeHtml.simpleTransform('a', { rel: 'noopener noreferrer nofollow', target: '_blank' }) }
 	});
 }
