@@ -12,7 +12,7 @@
 import { describe, expect, it } from 'vitest';
 import ref from './fixtures/bench-reference.json';
 import { analyze } from '../control';
-import { BENCH_POINTS, BenchState, BODE_POINTS, MAX_COMPARE, predictedMetrics, resample, SWEEP_COUNT, type BenchModelInput, type SavedTuningSet } from './bench.svelte';
+import { BENCH_POINTS, BenchState, BODE_POINTS, MAX_COMPARE, predictedMetrics, resample, responseWindow, SWEEP_COUNT, WINDOW_FACTOR, type BenchModelInput, type SavedTuningSet } from './bench.svelte';
 import { ruleRows } from './rules';
 
 const rel = (a: number | null | undefined, b: number, tol = 1e-9) => {
@@ -316,6 +316,17 @@ describe('helpers', () => {
 		const out = resample(ref.interp.tSrc, ref.interp.ySrc, ref.interp.tDst);
 		out.forEach((v, i) => rel(v, ref.interp.yDst[i], 1e-12));
 		expect(resample([0, 1], [0, 1], [-1, 2])).toEqual([null, null]);
+	});
+
+	it('the plot window covers WINDOW_FACTOR × the latest settling or recovery time and nothing for an unstable loop', () => {
+		const b = new BenchState(fopdtModel());
+		const r = analyze(b.analysisRequest);
+		const latest = Math.max(r.stepInfo.settlingTime ?? 0, r.stepInfo.peakTime ?? 0, r.disturbance.info.recoveryTime ?? 0, r.disturbance.info.peakTime ?? 0);
+		expect(latest).toBeGreaterThan(0);
+		expect(responseWindow([r])).toBeCloseTo(Math.min(r.simulation.tEnd, WINDOW_FACTOR * latest), 12);
+		b.setDisplay('kp', 50);
+		expect(responseWindow([analyze(b.analysisRequest)])).toBeNull();
+		expect(responseWindow([])).toBeNull();
 	});
 
 	it('predicted metrics are finite numbers or null, also for an unstable loop', () => {

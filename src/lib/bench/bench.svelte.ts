@@ -195,6 +195,28 @@ export function resample(tSrc: ArrayLike<number>, ySrc: ArrayLike<number | null>
 	return out;
 }
 
+/** Multiple of the slowest settling, recovery or peak time that the time plots show. */
+export const WINDOW_FACTOR = 2.5;
+
+/**
+ * End of the time plots' window in seconds: WINDOW_FACTOR times the latest settling, load
+ * recovery or peak time over the given responses (so every trace has settled inside it), never
+ * beyond the simulated time of the first. Null (show everything) when the first loop is unstable
+ * or none of those times exists.
+ */
+export function responseWindow(responses: readonly AnalysisResponse[]): number | null {
+	const first = responses[0];
+	if (!first || !first.closedLoop.stable) return null;
+	let latest = 0;
+	for (const r of responses) {
+		for (const t of [r.stepInfo.settlingTime, r.stepInfo.peakTime, r.disturbance.info.recoveryTime, r.disturbance.info.peakTime]) {
+			if (typeof t === 'number' && Number.isFinite(t) && t > latest) latest = t;
+		}
+	}
+	if (!(latest > 0)) return null;
+	return Math.min(first.simulation.tEnd, WINDOW_FACTOR * latest);
+}
+
 type ScaleKey = 'kp' | 'ti' | 'td' | 'ki' | 'kd' | 'n' | 'b' | 'c';
 
 /**
