@@ -1,12 +1,12 @@
 /**
  * Step-response metrics located between samples: rise time 10–90 %, peak and peak time,
  * overshoot and undershoot, settling time (last exit from a ±band·|final| tube), IAE, ISE, ITAE;
- * peak MV (largest sample: the MV jumps at events); and the corresponding load-disturbance measures. Events are found by cubic Hermite
- * interpolation when dy/dt samples are exact (else linear); integrals by the corrected
- * trapezoidal rule (plain trapezoidal without derivatives). Definitions follow PRODUCT.md and common practice (e.g. Ogata,
- * Modern Control Engineering, §5-3; python-control `step_info`, but interpolated instead of
- * sample-bound). Nothing here returns NaN or Infinity: a value that does not exist is null with
- * a reason.
+ * peak MV (largest sample: the MV jumps at events); and the corresponding load-disturbance
+ * measures. Events are found by cubic Hermite interpolation when dy/dt samples are exact (else
+ * linear); integrals by the corrected trapezoidal rule (plain trapezoidal without derivatives).
+ * Definitions follow PRODUCT.md and common practice (e.g. Ogata, Modern Control Engineering,
+ * §5-3; python-control `step_info`, but interpolated instead of sample-bound). Nothing here
+ * returns NaN or Infinity: a value that does not exist is null with a reason.
  */
 import { brentMinimize, brentRoot } from './solvers';
 
