@@ -24,8 +24,6 @@ const schema = z.object({
 	ORIGIN: z.string().optional(),
 	UPLOAD_DIR: z.string().default('.data/uploads'),
 	MAX_UPLOAD_BYTES: z.coerce.number().int().positive().default(20 * 1024 * 1024),
-	MEILISEARCH_URL: z.string().optional(),
-	MEILISEARCH_KEY: z.string().optional(),
 	SMTP_URL: z.string().optional(),
 	MAIL_FROM: z.string().default('Loopledger <loopledger@localhost>'),
 	/** Port of the local mail catcher on 127.0.0.1 (used when SMTP_URL is empty). */
