@@ -15,7 +15,7 @@ import { mkdirSync } from 'node:fs';
 import { chromium, type Browser, type BrowserContext, type Locator, type Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { DEMO_PASSWORD, DEMO_USERS } from '../../src/lib/server/seed/demo-users';
-import { createRevision, getRevision, revisionTemplate, updateDraft } from '../../src/lib/server/revisions';
+import { approve, createModel, createRevision, getRevision, revisionTemplate, submitForReview, updateDraft } from '../../src/lib/server/revisions';
 import { formatSig } from '../../src/lib/format';
 import type { RevisionInput } from '../../src/lib/schemas/revision';
 import { actingByEmail, closeServices, quietApprovedModel } from '../helpers/review';
@@ -234,7 +234,9 @@ describe('review journey', () => {
 		const params = reviewerTwoPage.getByRole('table', { name: /^Parameters of revision/ });
 		expect(await shows(params.getByRole('row'), 'Gain K')).toContain('+30 %');
 		expect(await shows(params.getByRole('row'), 'Dead time θ')).not.toContain('unchanged');
-		await visible(reviewerTwoPage.getByRole('insertion').filter({ hasText: 'dead time' }));
+		const texts = reviewerTwoPage.getByRole('region', { name: 'Texts' });
+		expect(await shows(texts, 're-read from the trend')).toContain('Change summary');
+		expect(await texts.getByRole('insertion').count()).toBeGreaterThan(0);
 		await visible(reviewerTwoPage.getByRole('img', { name: /Open-loop step responses/ }));
 		await reviewerTwoPage.getByRole('heading', { name: /Revision \d+ → revision \d+/ }).scrollIntoViewIfNeeded();
 		await reviewerTwoPage.screenshot({ path: `${SHOTS}/review-diff.png`, fullPage: true });
@@ -270,6 +272,40 @@ describe('review journey', () => {
 		const text = await csv.text();
 		expect(text.split('\r\n')[0]).toBe('\uFEFFid,at_utc,actor_id,actor_email,action,entity_type,entity_id,ip,before_json,after_json');
 		expect(text.split('\r\n').filter((l) => l.includes(',revision.submit,model_revision,')).length).toBe(2);
+	});
+
+	it('a reviewer revalidates an unchanged model with a new date; an administrator withdraws it with a reason', async () => {
+		// A model of its own (on the journey's asset), approved through the services, so no demo model is retired.
+		const author = await actingByEmail(engineer.email);
+		const template = await revisionTemplate(author, modelId);
+		const created = await createModel(author, {
+			title: 'Proofer 1 air temperature, spare coil (retired in test)',
+			asset: { id: template.model.asset.id },
+			revision: { ...template.values, changeSummary: 'Spare steam coil, same bump test procedure.' }
+		});
+		await submitForReview(author, created.revision.id);
+		await approve(await actingByEmail(reviewerTwo.email), created.revision.id, { comment: 'Checked.' });
+
+		await reviewerOnePage.goto(`/models/${created.model.id}/revisions/${created.revision.id}`, { waitUntil: 'networkidle' });
+		await reviewerOnePage.getByLabel('New revalidate-by date').fill('2030-06-30');
+		await reviewerOnePage.getByRole('button', { name: 'Revalidate' }).click();
+		expect(await shows(reviewerOnePage.getByRole('status'), 'Revalidated:')).toContain('revalidate-by 2030-06-30');
+
+		const adminPage = await signedIn(admin.email);
+		await adminPage.goto(`/models/${created.model.id}`, { waitUntil: 'networkidle' });
+		await adminPage.getByRole('link', { name: /record and review actions/ }).click();
+		await adminPage.waitForURL((u) => u.pathname.startsWith(`/models/${created.model.id}/revisions/`));
+		expect(await adminPage.getByRole('button', { name: /Approve/ }).count()).toBe(0);
+		// The reason is required: the browser's own check first, then the server's message if bypassed.
+		const reason = adminPage.getByLabel(/^Reason/);
+		await reason.evaluate((el) => el.removeAttribute('required'));
+		await adminPage.getByRole('button', { name: 'Withdraw the model' }).click();
+		await visible(adminPage.getByText('Reason: enter a value.'));
+		await reason.fill('Spare coil removed from the proofer; the model no longer applies.');
+		await adminPage.getByRole('button', { name: 'Withdraw the model' }).click();
+		await shows(adminPage.getByRole('status'), 'is withdrawn');
+		await adminPage.goto(`/models/${created.model.id}`, { waitUntil: 'networkidle' });
+		await visible(adminPage.getByText('Spare coil removed from the proofer', { exact: false }));
 	});
 
 	it('reads without JavaScript: the revision page and the history', async () => {
