@@ -7,7 +7,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import ref from './fixtures/bench-reference.json';
-import { designPlantFor, rulePlantFor, ruleRows } from './rules';
+import { commonWarnings, designPlantFor, rulePlantFor, ruleRows } from './rules';
 import type { PlantStructure, TuningPlant } from '../control';
 
 const rel = (a: number | null | undefined, b: number, tol = 1e-9) => {
@@ -92,5 +92,22 @@ describe('the design plant', () => {
 		expect(designPlantFor({ structure: 'sopdt', k: 1, tau: 5, tau2: 2, theta: 1 })).toMatchObject({ ok: true, plant: { structure: 'sopdt', tau: 5, tau2: 2 } });
 		const ipdt = designPlantFor({ structure: 'ipdt', k: 1, theta: 1 });
 		expect(ipdt.ok).toBe(false);
+	});
+});
+
+describe('warnings shared by most rules', () => {
+	it('are lifted out once; a rule keeps its own', () => {
+		const sopdt: TuningPlant = { structure: 'sopdt', k: 1, tau: 262.5, tau2: 40, theta: 22.5 };
+		const rows = ruleRows(sopdt, 'PID', 'ideal', null);
+		const { common, own } = commonWarnings(rows);
+		// The FOPDT rules on an SOPDT model work on its half-rule reduction (Skogestad 2003) and say so.
+		expect(common.some((w) => /half-rule/.test(w))).toBe(true);
+		for (const w of common) {
+			const carrying = rows.filter((r) => r.reason === null && r.warnings.includes(w)).length;
+			expect(carrying).toBeGreaterThan(rows.filter((r) => r.reason === null).length / 2);
+			for (const list of own.values()) expect(list).not.toContain(w);
+		}
+		for (const r of rows) for (const w of own.get(r.rule) ?? []) expect(r.warnings).toContain(w);
+		expect(commonWarnings([])).toEqual({ common: [], own: new Map() });
 	});
 });

@@ -162,3 +162,18 @@ export function designPlantFor(structure: PlantStructure): DesignPlantOutcome {
 			return { ok: false, reason: 'Design by pole placement covers first- and second-order models; this rational model is outside it. Use a tuning rule instead.' };
 	}
 }
+
+/**
+ * Warnings shared by more than half of the applicable rows (e.g. "rules applied to the half-rule
+ * FOPDT approximation"), to show once above the table; each row keeps only its own warnings.
+ */
+export function commonWarnings(rows: readonly RuleRow[]): { common: string[]; own: Map<TuningRuleId, string[]> } {
+	const applicable = rows.filter((r) => r.reason === null);
+	const counts = new Map<string, number>();
+	for (const r of applicable) for (const w of new Set(r.warnings)) counts.set(w, (counts.get(w) ?? 0) + 1);
+	const common = [...counts.entries()].filter(([, n]) => n > applicable.length / 2 && n >= 2).map(([w]) => w);
+	const shared = new Set(common);
+	const own = new Map<TuningRuleId, string[]>();
+	for (const r of rows) own.set(r.rule, r.warnings.filter((w) => !shared.has(w)));
+	return { common, own };
+}
