@@ -42,6 +42,7 @@ export const load = (async (event) => {
 	};
 }) satisfies PageServerLoad;
 
+/** Outbox administration from the mail page. */
 export const actions = {
 	/** Put a failed outbox message back in the queue, due now (audited by the service). */
 	retry: async (event) => {

@@ -37,6 +37,7 @@ export const load = (async (event) => {
 	return { tuningSet: t, model: view.model, allowed: view.allowed, why, canSeeQueue: can(acting.user.role, 'model.read_draft') };
 }) satisfies PageServerLoad;
 
+/** Review actions on this tuning set; each answers a success message or `fail` with the reason. */
 export const actions = {
 	/** Submit a draft tuning set for review (its author or a contributor). */
 	submit: async (event) => {

@@ -76,6 +76,7 @@ async function target(event: RequestEvent): Promise<{ modelId: number; revisionI
 	return { modelId, revisionId };
 }
 
+/** Review actions on this revision (and its model); each answers a success message or `fail` with the reason. */
 export const actions = {
 	/** Submit a draft for review (its author or a contributor); reviewers are notified by mail. */
 	submit: async (event) => {
