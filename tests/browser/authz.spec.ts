@@ -113,6 +113,28 @@ const TABLE: Record<string, Case[]> = {
 		{ method: 'POST', path: '/admin/mail?/retry', form: { id: 'none' }, expect: adminOnly(400) }
 	],
 	'/(app)/admin/mail/[id=id]': [{ method: 'GET', path: '/admin/mail/999999999', expect: adminOnly(404) }],
+	// Model form, export files and the models/assets API (issue 4). Forms post incomplete values:
+	// engineers and reviewers get past the permission check and are refused on the input (nothing written).
+	'/(app)/models/new': [
+		{ method: 'GET', path: '/models/new', expect: { signedOut: 303, viewer: 403, engineer: 200, reviewer: 200, admin: 403 } },
+		{ method: 'POST', path: '/models/new?/save', form: { title: '' }, expect: { signedOut: 303, viewer: 403, engineer: 400, reviewer: 400, admin: 403 } },
+		{ method: 'POST', path: '/models/new?/refresh', form: { structure: 'ipdt' }, expect: { signedOut: 303, viewer: 403, engineer: 200, reviewer: 200, admin: 403 } }
+	],
+	'/(app)/models/[id=id]/revise': [
+		{ method: 'GET', path: '/models/{model}/revise', expect: { signedOut: 303, viewer: 403, engineer: 200, reviewer: 200, admin: 403 } },
+		{ method: 'POST', path: '/models/{model}/revise?/save', form: { changeSummary: '' }, expect: { signedOut: 303, viewer: 403, engineer: 400, reviewer: 400, admin: 403 } }
+	],
+	'/(app)/models/[id=id]/export.json': [{ method: 'GET', path: '/models/{model}/export.json', expect: signedIn(200) }],
+	'/(app)/models/[id=id]/export.csv': [{ method: 'GET', path: '/models/{model}/export.csv', expect: signedIn(200) }],
+	'/api/v1/models': [
+		{ method: 'GET', path: '/api/v1/models', expect: api(200) },
+		{ method: 'GET', path: '/api/v1/models?sort=colour', expect: api(400) }
+	],
+	'/api/v1/models/[id]': [
+		{ method: 'GET', path: '/api/v1/models/{model}', expect: api(200) },
+		{ method: 'GET', path: '/api/v1/models/999999999', expect: api(404) }
+	],
+	'/api/v1/assets/[id]': [{ method: 'GET', path: '/api/v1/assets/{asset}', expect: api(200) }],
 	'/theme': [{ method: 'POST', path: '/theme', form: { theme: 'light', returnTo: '/register' }, expect: everyone(303) }],
 	// The JSON API (engine engineers): the calculator is for every signed-in role.
 	'/api/v1/analysis': [

@@ -13,10 +13,12 @@ import type { Actions, PageServerLoad } from './$types';
  * A new plant model with its first draft revision (engineers and reviewers). The asset is one of
  * the register's (`?asset=<id>` pre-selects it) or a new one described in the form.
  */
+const REFUSED = 'Only engineers and reviewers can record new models.';
+
 export const load = (async ({ locals, url }) => {
 	const user = locals.user;
 	if (!user) error(401, 'Sign in to record a model.');
-	if (!can(user.role, 'model.create')) error(403, 'Only engineers and reviewers can record new models.');
+	if (!can(user.role, 'model.create')) error(403, REFUSED);
 	const options = await orHttpError(assetPickerOptions({ id: user.id, role: user.role }));
 	const asked = Number(url.searchParams.get('asset'));
 	const preset = Number.isInteger(asked) && options.assets.some((a) => a.id === asked) ? String(asked) : '';
@@ -29,6 +31,8 @@ export const actions = {
 		const acting = actingOf(event);
 		if (!acting) error(401, 'Sign in to record a model.');
 		const values = formValues(await event.request.formData());
+		// Permission before validation: a viewer learns nothing about the form's rules.
+		if (!can(acting.user.role, 'model.create')) return fail(403, { errors: { _form: REFUSED }, values });
 		const parsed = modelCreateSchema().safeParse(submittedValues('create', values));
 		if (!parsed.success) return fail(400, { errors: fieldErrors(parsed.error), values });
 		let modelId: number;
@@ -41,5 +45,9 @@ export const actions = {
 		redirect(303, `/models/${modelId}`);
 	},
 	/** Without JavaScript: re-render the form for another structure, keeping every value; saves nothing. */
-	refresh: async ({ request }) => ({ values: formValues(await request.formData()), errors: {} as Record<string, string> })
+	refresh: async ({ request, locals }) => {
+		const values = formValues(await request.formData());
+		if (!locals.user || !can(locals.user.role, 'model.create')) return fail(403, { errors: { _form: REFUSED }, values });
+		return { values, errors: {} as Record<string, string> };
+	}
 } satisfies Actions;

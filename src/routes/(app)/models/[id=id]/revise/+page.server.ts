@@ -16,6 +16,7 @@ import type { Actions, PageServerLoad } from './$types';
  * review cannot be edited: the page says so.
  */
 const OPEN = new Set(['draft', 'changes_requested', 'in_review']);
+const REFUSED = 'Only engineers and reviewers can propose revisions.';
 
 async function openRevisionOf(acting: Acting, modelId: number) {
 	const history = await getHistory(acting, modelId);
@@ -25,7 +26,7 @@ async function openRevisionOf(acting: Acting, modelId: number) {
 export const load = (async (event) => {
 	const acting = actingOf(event);
 	if (!acting) error(401, 'Sign in to change a model.');
-	if (!can(acting.user.role, 'revision.propose')) error(403, 'Only engineers and reviewers can propose revisions.');
+	if (!can(acting.user.role, 'revision.propose')) error(403, REFUSED);
 	const modelId = Number(event.params.id);
 	const { model, open } = await orHttpError(openRevisionOf(acting, modelId));
 	if (open) {
@@ -76,6 +77,8 @@ export const actions = {
 		if (!acting) error(401, 'Sign in to change a model.');
 		const modelId = Number(event.params.id);
 		const values: FormStrings = formValues(await event.request.formData());
+		// Permission before validation: a viewer learns nothing about the form's rules.
+		if (!can(acting.user.role, 'revision.propose')) return fail(403, { errors: { _form: REFUSED }, values, conflict: null });
 		const editing = (values.version ?? '') !== '';
 		const mode = editing ? 'edit' : 'revise';
 		const submitted = submittedValues(mode, values);
@@ -99,5 +102,9 @@ export const actions = {
 		redirect(303, `/models/${modelId}`);
 	},
 	/** Without JavaScript: re-render the form for another structure, keeping every value; saves nothing. */
-	refresh: async ({ request }) => ({ values: formValues(await request.formData()), errors: {} as Record<string, string>, conflict: null })
+	refresh: async ({ request, locals }) => {
+		const values = formValues(await request.formData());
+		if (!locals.user || !can(locals.user.role, 'revision.propose')) return fail(403, { errors: { _form: REFUSED }, values, conflict: null });
+		return { values, errors: {} as Record<string, string>, conflict: null };
+	}
 } satisfies Actions;
