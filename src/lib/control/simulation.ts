@@ -427,11 +427,6 @@ function simulateDelayed(loop: Loop, theta: number, h: number, q: number, points
 	let hA1: Float64Array = new Float64Array(nz);
 	let hrA: Float64Array = new Float64Array(nz);
 	let hdA: Float64Array = new Float64Array(nz);
-	let kzPhiA: Float64Array = kz;
-	let kA0 = 0;
-	let kA1 = 0;
-	let krA = 0;
-	let kdA = 0;
 	if (dA) {
 		const A = pieceY(dA, LA);
 		phi = matMulSquare(dB.phi, dA.phi, nz);
@@ -439,16 +434,6 @@ function simulateDelayed(loop: Loop, theta: number, h: number, q: number, points
 		hA1 = matVec(dB.phi, nz, A.y1);
 		hrA = matVec(dB.phi, nz, dA.g0[0]);
 		hdA = matVec(dB.phi, nz, dA.g0[2]);
-		kzPhiA = new Float64Array(nz);
-		for (let c = 0; c < nz; c++) {
-			let s = 0;
-			for (let r = 0; r < nz; r++) s += kz[r] * dA.phi[r * nz + c];
-			kzPhiA[c] = s;
-		}
-		kA0 = dot(kz, A.y0);
-		kA1 = dot(kz, A.y1);
-		krA = dot(kz, dA.g0[0]);
-		kdA = dot(kz, dA.g0[2]);
 	}
 	const impulseVec = new Float64Array(nz);
 	if (loop.impulse !== 0) {
@@ -457,7 +442,6 @@ function simulateDelayed(loop: Loop, theta: number, h: number, q: number, points
 		matVecInto(dB.phi, nz, raw, impulseVec);
 	}
 	const nFine = (points - 1) * q + 1;
-	const K = nFine + M; // steps so that the MV of every fine node is known
 	// Contributions of the delayed PV samples y(j−1), y(j), y(j+1) to the next state, with
 	// yA0 = f·y(j−1) + (1−f)·y(j), yA1 = yB0 = y(j), yB1 = f·y(j) + (1−f)·y(j+1).
 	const cm1 = new Float64Array(nz);
@@ -477,25 +461,19 @@ function simulateDelayed(loop: Loop, theta: number, h: number, q: number, points
 		constS0[r] = grB[r] + impulseVec[r];
 		constD0[r] = gdB[r];
 	}
-	// MV of node j from the state at step k = j + M: kzPhiA·z + um1·y(j−1) + u0·y(j) + const.
-	const um1 = kA0 * f;
-	const u0 = kA0 * (1 - f) + kA1 + wy;
-	const Ys = new Float64Array(K + 1);
-	const Yd = new Float64Array(K + 1);
-	const DYs = new Float64Array(K + 1);
-	const DYd = new Float64Array(K + 1);
-	const Us = new Float64Array(nFine);
-	const Ud = new Float64Array(nFine);
+	const Ys = new Float64Array(nFine);
+	const Yd = new Float64Array(nFine);
+	const DYs = new Float64Array(nFine);
+	const DYd = new Float64Array(nFine);
 	const zs = new Float64Array(nz);
 	const zd = new Float64Array(nz);
 	const ts = new Float64Array(nz);
 	const td = new Float64Array(nz);
 	const cpe = new Float64Array(nz);
 	for (let c = 0; c < np; c++) cpe[c] = ss.c[c];
-	const uLimit = limit * 1e3;
-	let lastY = K; // last node with y computed
+	let count = nFine;
 	let truncatedAt: number | null = null;
-	for (let k = 0; k <= K; k++) {
+	for (let k = 0; k < nFine; k++) {
 		const j = k - M;
 		const yj1s = j >= 1 ? Ys[j - 1] : 0;
 		const yjs = j >= 0 ? Ys[j] : 0;
@@ -509,15 +487,13 @@ function simulateDelayed(loop: Loop, theta: number, h: number, q: number, points
 			dyDelS = f * (j >= 1 ? DYs[j - 1] : 0) + (1 - f) * (j >= 0 ? DYs[j] : 0);
 			dyDelD = f * (j >= 1 ? DYd[j - 1] : 0) + (1 - f) * (j >= 0 ? DYd[j] : 0);
 		}
+		// Kz acts on the controller states only, Cp and Cp·Ap on the plant states only.
 		let kzs = 0;
 		let kzd = 0;
 		let cps = 0;
 		let cpd = 0;
-		let mvs = 0;
-		let mvd = 0;
 		let das = 0;
 		let dad = 0;
-		// Kz acts on the controller states only, Cp and Cp·Ap on the plant states only.
 		for (let c = 0; c < np; c++) {
 			const a = zs[c];
 			const b = zd[c];
@@ -525,21 +501,13 @@ function simulateDelayed(loop: Loop, theta: number, h: number, q: number, points
 			cpd += cpe[c] * b;
 			das += cpAp[c] * a;
 			dad += cpAp[c] * b;
-			mvs += kzPhiA[c] * a;
-			mvd += kzPhiA[c] * b;
 		}
 		for (let c = np; c < nz; c++) {
-			const a = zs[c];
-			const b = zd[c];
-			kzs += kz[c] * a;
-			kzd += kz[c] * b;
-			mvs += kzPhiA[c] * a;
-			mvd += kzPhiA[c] * b;
+			kzs += kz[c] * zs[c];
+			kzd += kz[c] * zd[c];
 		}
-		const yA0s = f * yj1s + (1 - f) * yjs;
-		const yA0d = f * yj1d + (1 - f) * yjd;
-		const vs = kzs + wr * stepNow + wy * yA0s + wdy * dyDelS;
-		const vd = kzd + wy * yA0d + wdy * dyDelD + stepNow;
+		const vs = kzs + wr * stepNow + wy * (f * yj1s + (1 - f) * yjs) + wdy * dyDelS;
+		const vd = kzd + wy * (f * yj1d + (1 - f) * yjd) + wdy * dyDelD + stepNow;
 		const ysk = cps + dp * vs;
 		const ydk = cpd + dp * vd;
 		Ys[k] = ysk;
@@ -549,24 +517,11 @@ function simulateDelayed(loop: Loop, theta: number, h: number, q: number, points
 			DYd[k] = dad + cpBp * vd;
 		}
 		if (!(Math.abs(ysk) <= limit && Math.abs(ydk) <= limit)) {
-			lastY = Math.max(0, k - 1);
+			count = Math.max(1, k);
 			truncatedAt = k * h;
 			break;
 		}
-		// MV of node j = w at the breakpoint of this interval.
-		if (j >= 0 && j < nFine) {
-			const rsA = j >= 1 ? 1 : 0;
-			const us = mvs + um1 * yj1s + u0 * yjs + krA * rsA + wr + (ideal ? wdy * DYs[j] : 0);
-			const ud = mvd + um1 * yj1d + u0 * yjd + kdA * rsA + (ideal ? wdy * DYd[j] : 0);
-			Us[j] = us;
-			Ud[j] = ud;
-			if (!(Math.abs(us) <= uLimit && Math.abs(ud) <= uLimit)) {
-				lastY = Math.max(0, k - 1);
-				truncatedAt = k * h;
-				break;
-			}
-		}
-		if (k === K) break;
+		if (k === nFine - 1) break;
 		const yjp1s = j + 1 >= 0 ? Ys[j + 1] : 0;
 		const yjp1d = j + 1 >= 0 ? Yd[j + 1] : 0;
 		const kS = j >= 1 ? constS : j === 0 ? constS0 : zeroVec;
@@ -586,25 +541,75 @@ function simulateDelayed(loop: Loop, theta: number, h: number, q: number, points
 		zs.set(ts);
 		zd.set(td);
 	}
-	// Fine nodes with both PV and MV known.
-	const validFine = truncatedAt === null ? nFine : Math.max(1, Math.min(nFine, lastY - M + 1));
-	const fineCount = Math.max(1, validFine);
-	const tFine = new Float64Array(fineCount);
-	for (let k = 0; k < fineCount; k++) tFine[k] = k * h;
+	// The MV u = Cr·r − C·y in original time, from the controller states driven by the step r and
+	// the simulated PV (linear between samples, as inside the delay line).
+	const Us = new Float64Array(count);
+	const Ud = new Float64Array(count);
+	controllerOutput(loop, h, Ys, ideal ? DYs : null, 1, Us, count);
+	controllerOutput(loop, h, Yd, ideal ? DYd : null, 0, Ud, count);
+	for (let k = 0; k < count; k++) {
+		if (!(Math.abs(Us[k]) <= limit * 1e3 && Math.abs(Ud[k]) <= limit * 1e3)) {
+			count = Math.max(1, k);
+			truncatedAt = k * h;
+			break;
+		}
+	}
+	const tFine = new Float64Array(count);
+	for (let k = 0; k < count; k++) tFine[k] = k * h;
+	const cut = (x: Float64Array) => (x.length === count ? x : x.slice(0, count));
 	const fine = {
 		t: tFine,
-		setpoint: { y: Ys.slice(0, fineCount), u: Us.slice(0, fineCount), dy: dp === 0 ? DYs.slice(0, fineCount) : null },
-		disturbance: { y: Yd.slice(0, fineCount), u: Ud.slice(0, fineCount), dy: dp === 0 ? DYd.slice(0, fineCount) : null }
+		setpoint: { y: cut(Ys), u: cut(Us), dy: dp === 0 ? cut(DYs) : null },
+		disturbance: { y: cut(Yd), u: cut(Ud), dy: dp === 0 ? cut(DYd) : null }
 	};
-	const count = Math.floor((fineCount - 1) / q) + 1;
+	const userCount = Math.floor((count - 1) / q) + 1;
 	return {
-		...userGrid(fine, q, count),
+		...userGrid(fine, q, userCount),
 		fine,
 		h,
 		substeps: q,
 		method: 'delay-line',
 		mvImpulse: loop.impulse !== 0,
-		truncatedAt: truncatedAt === null ? null : Math.max(0, (count - 1) * q * h),
+		truncatedAt: truncatedAt === null ? null : Math.max(0, (userCount - 1) * q * h),
 		notes: []
 	};
+}
+
+/**
+ * Controller output u_k = Kc·xc + wr·r + wy·y_k + wdy·ẏ_k at the samples, with the controller
+ * states xc (integral, derivative filter) driven by the constant set-point r (from t = 0) and by
+ * y linear between samples (exact first-order-hold discretisation).
+ */
+function controllerOutput(loop: Loop, h: number, y: Float64Array, dy: Float64Array | null, r: number, out: Float64Array, count: number): void {
+	const { nz, np, kz, wr, wy, wdy } = loop;
+	const nc = nz - np;
+	if (nc === 0) {
+		for (let k = 0; k < count; k++) out[k] = wr * r + wy * y[k] + (dy ? wdy * dy[k] : 0);
+		return;
+	}
+	const ac = new Float64Array(nc * nc);
+	const br = new Float64Array(nc);
+	const by = new Float64Array(nc);
+	for (let i = 0; i < nc; i++) {
+		for (let j = 0; j < nc; j++) ac[i * nc + j] = loop.a[(np + i) * nz + np + j];
+		br[i] = loop.br[np + i];
+		by[i] = loop.by[np + i];
+	}
+	const d = discretize(ac, nc, [br, by], h);
+	const xc = new Float64Array(nc);
+	const tmp = new Float64Array(nc);
+	for (let k = 0; k < count; k++) {
+		let s = wr * r + wy * y[k] + (dy ? wdy * dy[k] : 0);
+		for (let i = 0; i < nc; i++) s += kz[np + i] * xc[i];
+		out[k] = s;
+		if (k === count - 1) break;
+		const y0 = y[k];
+		const y1 = y[k + 1];
+		for (let i = 0; i < nc; i++) {
+			let v = d.g0[0][i] * r + d.g0[1][i] * y0 + d.g1[1][i] * (y1 - y0);
+			for (let j = 0; j < nc; j++) v += d.phi[i * nc + j] * xc[j];
+			tmp[i] = v;
+		}
+		xc.set(tmp);
+	}
 }
