@@ -86,7 +86,22 @@ export interface AnalysisResponse {
 	reasons: Record<string, string>;
 }
 
-const toArray = (a: ArrayLike<number>) => Array.from(a);
+/** Series already converted and checked for finiteness (the final sanitiser skips them). */
+const checked = new WeakSet<object>();
+/** Copies a typed array into a plain array, replacing non-finite values by null (recorded). */
+function toArray(a: ArrayLike<number>, path: string, found: string[]): number[] {
+	const out = new Array<number>(a.length);
+	for (let i = 0; i < a.length; i++) {
+		const v = a[i];
+		if (Number.isFinite(v)) out[i] = v;
+		else {
+			found.push(`${path}[${i}]`);
+			out[i] = null as unknown as number;
+		}
+	}
+	checked.add(out);
+	return out;
+}
 
 /**
  * Analyses a plant num/den·e^(−delay·s) under a P/PI/PD/PID controller: closed loop (Padé for
@@ -128,6 +143,8 @@ export function analyze(request: AnalysisRequest): AnalysisResponse {
 	if (!a.closedLoop.dominant) reasons.dominant = 'The dominant (rightmost) closed-loop pole is real, or there are no poles.';
 	const sim = a.simulation;
 	const plantStructure = recognisePlant(plant);
+	const found: string[] = [];
+	const series = (x: ArrayLike<number>, path: string) => toArray(x, path, found);
 	const response: AnalysisResponse = {
 		closedLoop: {
 			num: a.closedLoop.num,
@@ -140,7 +157,7 @@ export function analyze(request: AnalysisRequest): AnalysisResponse {
 			routh: a.closedLoop.routh,
 			instability: a.closedLoop.instability
 		},
-		step: { t: toArray(sim.t), y: toArray(sim.setpoint.y), u: toArray(sim.setpoint.u) },
+		step: { t: series(sim.t, 'step.t'), y: series(sim.setpoint.y, 'step.y'), u: series(sim.setpoint.u, 'step.u') },
 		stepInfo: { ...a.step, settlingBand: band },
 		margins: {
 			gainMargin: a.margins.gainMargin,
@@ -155,7 +172,7 @@ export function analyze(request: AnalysisRequest): AnalysisResponse {
 			gainCrossings: a.margins.gainCrossings
 		},
 		dominant: a.closedLoop.dominant,
-		disturbance: { t: toArray(sim.t), y: toArray(sim.disturbance.y), u: toArray(sim.disturbance.u), info: a.disturbance },
+		disturbance: { t: series(sim.t, 'disturbance.t'), y: series(sim.disturbance.y, 'disturbance.y'), u: series(sim.disturbance.u, 'disturbance.u'), info: a.disturbance },
 		bode: a.bode ?? { w: [], magDb: [], phaseDeg: [] },
 		errorConstants: ec,
 		steadyState: ss,
@@ -180,16 +197,15 @@ export function analyze(request: AnalysisRequest): AnalysisResponse {
 		});
 	}
 	if (request.sweep) response.sweep = sweepPoles(plant, request.controller, request.sweep, o.padeOrder);
-	return sanitize(response);
+	return sanitize(response, found);
 }
 
 /**
- * Replaces any non-finite number left anywhere in the response by null and records it (a
- * safety net: the engine is meant never to produce one; the fuzz test checks that this note
- * never appears).
+ * Replaces any non-finite number left anywhere in the response by null and records it, with
+ * those already found in the time series (a safety net: the engine is meant never to produce one;
+ * the fuzz test checks that this note never appears).
  */
-function sanitize(r: AnalysisResponse): AnalysisResponse {
-	const found: string[] = [];
+function sanitize(r: AnalysisResponse, found: string[]): AnalysisResponse {
 	const walk = (v: unknown, path: string): unknown => {
 		if (typeof v === 'number') {
 			if (Number.isFinite(v)) return v;
@@ -197,6 +213,7 @@ function sanitize(r: AnalysisResponse): AnalysisResponse {
 			return null;
 		}
 		if (Array.isArray(v)) {
+			if (checked.has(v)) return v;
 			for (let i = 0; i < v.length; i++) {
 				const x = v[i];
 				// Fast path for the long numeric series: only a bad value builds a path.
