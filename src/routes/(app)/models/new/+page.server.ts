@@ -9,12 +9,12 @@ import { NEW_MODEL_DEFAULTS, submittedValues } from '$lib/components/model-form/
 import { fieldErrors, formValues, modelCreateSchema } from '$lib/schemas/revision';
 import type { Actions, PageServerLoad } from './$types';
 
+const REFUSED = 'Only engineers and reviewers can record new models.';
+
 /**
  * A new plant model with its first draft revision (engineers and reviewers). The asset is one of
  * the register's (`?asset=<id>` pre-selects it) or a new one described in the form.
  */
-const REFUSED = 'Only engineers and reviewers can record new models.';
-
 export const load = (async ({ locals, url }) => {
 	const user = locals.user;
 	if (!user) error(401, 'Sign in to record a model.');
@@ -25,6 +25,7 @@ export const load = (async ({ locals, url }) => {
 	return { options, initial: { ...NEW_MODEL_DEFAULTS, assetId: preset } };
 }) satisfies PageServerLoad;
 
+/** `save` writes through `createModel`; `refresh` re-renders the form without JavaScript. */
 export const actions = {
 	/** Check with the shared schema; save through the service (one transaction with its audit event); go to the new model. */
 	save: async (event) => {

@@ -9,12 +9,6 @@ import { submittedValues, toFormStrings, type ConflictView, type FormStrings } f
 import type { RevisionInput } from '$lib/schemas/revision';
 import type { Actions, PageServerLoad } from './$types';
 
-/**
- * One address for changing a model: `/models/:id/revise`. When the model has a revision being
- * worked on (a draft, or one sent back), the form edits it, guarded by its version (optimistic
- * locking); otherwise the form starts a new draft revision from the approved one. A revision in
- * review cannot be edited: the page says so.
- */
 const OPEN = new Set(['draft', 'changes_requested', 'in_review']);
 const REFUSED = 'Only engineers and reviewers can propose revisions.';
 
@@ -23,6 +17,12 @@ async function openRevisionOf(acting: Acting, modelId: number) {
 	return { model: history.model, open: history.revisions.find((r) => OPEN.has(r.state)) ?? null };
 }
 
+/**
+ * One address for changing a model: `/models/:id/revise`. When the model has a revision being
+ * worked on (a draft, or one sent back), the form edits it, guarded by its version (optimistic
+ * locking); otherwise the form starts a new draft revision from the approved one. A revision in
+ * review cannot be edited: the page says so (mode "blocked").
+ */
 export const load = (async (event) => {
 	const acting = actingOf(event);
 	if (!acting) error(401, 'Sign in to change a model.');
@@ -66,6 +66,7 @@ function conflictView(e: ConflictError<RevisionInput>): ConflictView {
 	};
 }
 
+/** `save` writes through the revision services; `refresh` re-renders the form without JavaScript. */
 export const actions = {
 	/**
 	 * Edit the open draft (when the form carries its `version`) or start a new revision; checked with
