@@ -10,7 +10,7 @@
 import type { Complex } from './types';
 import { polyTrailingZeros, polyTrim } from './polynomial';
 import { roots } from './roots';
-import { brentMinimize, brentRoot } from './solvers';
+import { brentMinimize, newtonBracketed } from './solvers';
 
 /** A loop in factored form, ready for fast evaluation on the imaginary axis. */
 export interface LoopModel {
@@ -93,6 +93,31 @@ export function loopPhase(m: LoopModel, w: number): number {
 	for (let i = 0; i < zr.length; i++) acc += Math.atan2(w - zi[i], -zr[i]);
 	for (let i = 0; i < pr.length; i++) acc -= Math.atan2(w - pi[i], -pr[i]);
 	return acc - w * m.delay + m.phaseOffset;
+}
+
+/**
+ * d(log|L|)/d(log ω) and d∠L/d(log ω) at ω: sums over the factors of (ω − Im r)·ω/|jω − r|² and
+ * −Re r·ω/|jω − r|² (zeros +, poles −), minus ωθ for the phase. Used for Newton refinement.
+ */
+export function loopSlopes(m: LoopModel, w: number): { dLogMag: number; dPhase: number } {
+	let dm = 0;
+	let dp = 0;
+	const { zr, zi, pr, pi } = m;
+	for (let i = 0; i < zr.length; i++) {
+		const a = w - zi[i];
+		const d = a * a + zr[i] * zr[i];
+		if (d === 0) continue;
+		dm += a / d;
+		dp += -zr[i] / d;
+	}
+	for (let i = 0; i < pr.length; i++) {
+		const a = w - pi[i];
+		const d = a * a + pr[i] * pr[i];
+		if (d === 0) continue;
+		dm -= a / d;
+		dp -= -pr[i] / d;
+	}
+	return { dLogMag: dm * w, dPhase: (dp - m.delay) * w };
 }
 
 /** L(jω) as a complex number (magnitude clamped to e^±300 to stay finite). */
@@ -254,7 +279,8 @@ const PHASE_CROSSING_FLOOR = Math.log(1e-6);
 /**
  * All phase crossovers (∠L(jω) = −180° mod 360°; the first MAX_PHASE_CROSSINGS in frequency, and
  * only where |L| ≥ 1e-6, i.e. gain margins up to 120 dB) and gain crossovers (|L(jω)| = 1) on the
- * analysis grid, each bracketed on the grid and refined by Brent's method in log ω.
+ * analysis grid, each bracketed on the grid and refined in log ω by Newton's method with the
+ * analytic slopes of `loopSlopes`, safeguarded by bisection.
  */
 export function findCrossings(m: LoopModel, grid: ArrayLike<number>, values?: GridValues): { phase: PhaseCrossing[]; gain: GainCrossing[] } {
 	const n = grid.length;
@@ -267,7 +293,10 @@ export function findCrossings(m: LoopModel, grid: ArrayLike<number>, values?: Gr
 		const b = Math.log(grid[i + 1]);
 		// Gain crossover: log|L| changes sign.
 		if ((lm[i] > 0) !== (lm[i + 1] > 0) && lm[i] !== lm[i + 1]) {
-			const x = brentRoot((x) => loopLogMagnitude(m, Math.exp(x)), a, b, 1e-14);
+			const x = newtonBracketed((x) => {
+				const w = Math.exp(x);
+				return [loopLogMagnitude(m, w), loopSlopes(m, w).dLogMag];
+			}, a, b, 1e-15);
 			if (x !== null) {
 				const w = Math.exp(x);
 				gain.push({ w, phaseMargin: (180 / Math.PI) * wrapPi(loopPhase(m, w) + Math.PI) });
@@ -283,7 +312,10 @@ export function findCrossings(m: LoopModel, grid: ArrayLike<number>, values?: Gr
 		for (let k = Math.floor(lo) + 1; k <= Math.floor(hi) && phase.length < MAX_PHASE_CROSSINGS; k++) {
 			if (k === lo) continue;
 			const target = 2 * Math.PI * k - Math.PI;
-			const x = brentRoot((x) => loopPhase(m, Math.exp(x)) - target, a, b, 1e-14);
+			const x = newtonBracketed((x) => {
+				const w = Math.exp(x);
+				return [loopPhase(m, w) - target, loopSlopes(m, w).dPhase];
+			}, a, b, 1e-15);
 			if (x === null) continue;
 			const w = Math.exp(x);
 			// A jump of the phase (a root on the imaginary axis) is not a crossing.

@@ -142,3 +142,50 @@ export function brentMinimize(f: (x: number) => number, a: number, b: number, ma
 	}
 	return { x, fx };
 }
+
+/**
+ * Zero of f on a bracket [a, b] (f(a)·f(b) ≤ 0) by Newton's method safeguarded with bisection:
+ * a Newton step that leaves the bracket or shrinks it too slowly is replaced by a bisection
+ * (the "rtsafe" strategy; Press et al., Numerical Recipes, 3rd ed., §9.4, idea only). fdf returns
+ * [f(x), f′(x)]. Returns null when [a, b] does not bracket a sign change.
+ */
+export function newtonBracketed(fdf: (x: number) => [number, number], a: number, b: number, relTol = 1e-14, maxIter = 100): number | null {
+	let [fa] = fdf(a);
+	const [fb] = fdf(b);
+	if (!Number.isFinite(fa) || !Number.isFinite(fb)) return null;
+	if (fa === 0) return a;
+	if (fb === 0) return b;
+	if (fa > 0 === fb > 0) return null;
+	let lo = a;
+	let hi = b;
+	// Keep f(lo) < 0 < f(hi) orientation.
+	if (fa > 0) {
+		lo = b;
+		hi = a;
+		fa = fb;
+	}
+	let x = 0.5 * (a + b);
+	let dxOld = Math.abs(b - a);
+	let dx = dxOld;
+	let [f, df] = fdf(x);
+	for (let it = 0; it < maxIter; it++) {
+		const newtonOut = ((x - hi) * df - f) * ((x - lo) * df - f) > 0;
+		const slow = Math.abs(2 * f) > Math.abs(dxOld * df);
+		if (!Number.isFinite(df) || df === 0 || newtonOut || slow) {
+			dxOld = dx;
+			dx = 0.5 * (hi - lo);
+			x = lo + dx;
+		} else {
+			dxOld = dx;
+			dx = f / df;
+			x -= dx;
+		}
+		if (Math.abs(dx) <= relTol * Math.abs(x) || Math.abs(dx) < 1e-300) return x;
+		[f, df] = fdf(x);
+		if (!Number.isFinite(f)) return null;
+		if (f === 0) return x;
+		if (f < 0) lo = x;
+		else hi = x;
+	}
+	return x;
+}
