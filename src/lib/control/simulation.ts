@@ -6,11 +6,13 @@
  * Loop: u = Cr·r − C·y (controller as parallel terms p, i, d, Tf with weights b, c), plant
  * y = G(s)·e^(−θs)·(u + d). Because the loop is linear and time-invariant, the dead time may be
  * moved in front of the controller: w(t) = u(t − θ) is the controller's response to the delayed
- * signals r(t − θ), y(t − θ) (and the plant input is w + d(t − θ)); the MV is u(t) = w(t + θ).
- * The controller and plant states are integrated by their exact discretisation (matrix
- * exponential; Van Loan, IEEE Trans. Autom. Control 23 (1978) 395–404) with the delayed PV
- * interpolated linearly between samples (a first-order hold), the delayed step exactly placed
- * at t = θ even between samples. The only approximation is that interpolation (error O(h²)).
+ * signals r(t − θ), y(t − θ), and the plant input is w + d(t − θ). The controller and plant
+ * states are integrated by their exact discretisation (matrix exponential; Van Loan, IEEE Trans.
+ * Autom. Control 23 (1978) 395–404) with the delayed PV interpolated linearly between samples (a
+ * first-order hold) and the delayed step placed exactly at t = θ, even between samples. The MV
+ * u = Cr·r − C·y is then computed in original time from the controller alone, driven by the step
+ * and the simulated PV (same interpolation). The only approximation is that interpolation (error
+ * O(h²) for a smooth PV).
  * Without dead time the closed loop is discretised exactly (zero-order hold of the constant
  * step input is exact).
  *
