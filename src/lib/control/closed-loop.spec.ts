@@ -163,3 +163,17 @@ describe('error constants and steady-state errors (final value theorem, Ogata §
 		expect(d?.zeta).toBeCloseTo(1 / Math.sqrt(5), 15);
 	});
 });
+
+describe('root magnitude bound', () => {
+	it('bounds every root (Fujiwara 1916, from memory): property on random polynomials', async () => {
+		const { rootMagnitudeBound } = await import('./closed-loop');
+		fc.assert(
+			fc.property(fc.array(fc.oneof(fc.constant(0), fc.double({ min: 1e-3, max: 100, noNaN: true }), fc.double({ min: -100, max: -1e-3, noNaN: true })), { minLength: 2, maxLength: 12 }), (p) => {
+				fc.pre(p[0] !== 0);
+				const bound = rootMagnitudeBound(p);
+				for (const r of roots(p)) expect(Math.hypot(r.re, r.im)).toBeLessThanOrEqual(bound * (1 + 1e-9) + 1e-12);
+			}),
+			{ numRuns: 300, seed: 41 }
+		);
+	});
+});

@@ -17,7 +17,7 @@ import { polyAdd, polyDegree, polyMaxAbs, polyMul, polySub, polyTrailingZeros, p
 import { roots } from './roots';
 import { pade } from './transfer-function';
 
-/** θ·max|p| below which a dead time is neglected for closed-loop poles (p: delay-free closed-loop poles). */
+/** θ·|p|max below which a dead time is neglected for closed-loop poles (|p|max: Fujiwara's bound on the delay-free poles). */
 export const NEGLIGIBLE_DELAY = 1e-6;
 
 /** Default order of the Padé approximant used for closed-loop poles of delayed loops. */
@@ -62,6 +62,22 @@ export function closedLoopPolynomials(plant: TransferFunction, terms: Controller
 		loopNum,
 		loopDen
 	};
+}
+
+/**
+ * Upper bound on the magnitude of every root of p: 2·max(|a1/a0|, |a2/a0|^(1/2), …,
+ * |an/(2·a0)|^(1/n)) (Fujiwara's bound, 1916; as in Marden, Geometry of Polynomials, 1966, from
+ * memory). 0 for constants.
+ */
+export function rootMagnitudeBound(p: readonly number[]): number {
+	const a = polyTrim(p);
+	const n = a.length - 1;
+	let m = 0;
+	for (let k = 1; k <= n; k++) {
+		const c = Math.abs(a[k] / a[0]) / (k === n ? 2 : 1);
+		if (c > 0) m = Math.max(m, Math.pow(c, 1 / k));
+	}
+	return 2 * m;
 }
 
 /** Routh–Hurwitz test result: sign changes in the first column = roots in the open RHP. */
@@ -240,10 +256,9 @@ export function analyzeClosedLoop(plant: TransferFunction, terms: ControllerTerm
 	let delayed = plant.delay > 0;
 	if (delayed) {
 		// A dead time far below every time scale of the loop would only add Padé poles near
-		// −2n/θ and coefficients outside the floating-point range: neglect it for the poles.
-		const exactPoles = roots(exact.char);
-		const fastest = Math.max(1e-300, ...exactPoles.map((p) => Math.hypot(p.re, p.im)));
-		if (plant.delay * fastest < NEGLIGIBLE_DELAY) {
+		// −2n/θ and coefficients outside the floating-point range: neglect it for the poles
+		// (θ·|p|max < 1e-6, with |p|max bounded from the delay-free characteristic polynomial).
+		if (plant.delay * rootMagnitudeBound(exact.char) < NEGLIGIBLE_DELAY) {
 			delayed = false;
 			warnings.push(`The dead time (${plant.delay.toPrecision(3)} s) is negligible against the closed-loop time scales (θ·|p|max < ${NEGLIGIBLE_DELAY}); poles and zeros are those of the delay-free loop.`);
 		}

@@ -547,8 +547,9 @@ function simulateDelayed(loop: Loop, theta: number, h: number, q: number, points
 	// the simulated PV (linear between samples, as inside the delay line).
 	const Us = new Float64Array(count);
 	const Ud = new Float64Array(count);
-	controllerOutput(loop, h, Ys, ideal ? DYs : null, 1, Us, count);
-	controllerOutput(loop, h, Yd, ideal ? DYd : null, 0, Ud, count);
+	const ctrl = discretizeController(loop, h);
+	controllerOutput(loop, ctrl, Ys, ideal ? DYs : null, 1, Us, count);
+	controllerOutput(loop, ctrl, Yd, ideal ? DYd : null, 0, Ud, count);
 	for (let k = 0; k < count; k++) {
 		if (!(Math.abs(Us[k]) <= limit * 1e3 && Math.abs(Ud[k]) <= limit * 1e3)) {
 			count = Math.max(1, k);
@@ -577,39 +578,59 @@ function simulateDelayed(loop: Loop, theta: number, h: number, q: number, points
 	};
 }
 
+/** Exact discretisation of the controller states (integral, derivative filter) over one step h. */
+interface DiscreteController {
+	nc: number;
+	phi: Float64Array;
+	gr: Float64Array;
+	gy0: Float64Array;
+	gy1: Float64Array;
+	kc: Float64Array;
+}
+
+function discretizeController(loop: Loop, h: number): DiscreteController {
+	const { nz, np } = loop;
+	const nc = nz - np;
+	const ac = new Float64Array(nc * nc);
+	const br = new Float64Array(nc);
+	const by = new Float64Array(nc);
+	const kc = new Float64Array(nc);
+	for (let i = 0; i < nc; i++) {
+		for (let j = 0; j < nc; j++) ac[i * nc + j] = loop.a[(np + i) * nz + np + j];
+		br[i] = loop.br[np + i];
+		by[i] = loop.by[np + i];
+		kc[i] = loop.kz[np + i];
+	}
+	if (nc === 0) return { nc, phi: ac, gr: br, gy0: by, gy1: by, kc };
+	const d = discretize(ac, nc, [br, by], h);
+	return { nc, phi: d.phi, gr: d.g0[0], gy0: d.g0[1], gy1: d.g1[1], kc };
+}
+
 /**
  * Controller output u_k = Kc·xc + wr·r + wy·y_k + wdy·ẏ_k at the samples, with the controller
  * states xc (integral, derivative filter) driven by the constant set-point r (from t = 0) and by
  * y linear between samples (exact first-order-hold discretisation).
  */
-function controllerOutput(loop: Loop, h: number, y: Float64Array, dy: Float64Array | null, r: number, out: Float64Array, count: number): void {
-	const { nz, np, kz, wr, wy, wdy } = loop;
-	const nc = nz - np;
+function controllerOutput(loop: Loop, d: DiscreteController, y: Float64Array, dy: Float64Array | null, r: number, out: Float64Array, count: number): void {
+	const { wr, wy, wdy } = loop;
+	const { nc, phi, gr, gy0, gy1, kc } = d;
+	const base = wr * r;
 	if (nc === 0) {
-		for (let k = 0; k < count; k++) out[k] = wr * r + wy * y[k] + (dy ? wdy * dy[k] : 0);
+		for (let k = 0; k < count; k++) out[k] = base + wy * y[k] + (dy ? wdy * dy[k] : 0);
 		return;
 	}
-	const ac = new Float64Array(nc * nc);
-	const br = new Float64Array(nc);
-	const by = new Float64Array(nc);
-	for (let i = 0; i < nc; i++) {
-		for (let j = 0; j < nc; j++) ac[i * nc + j] = loop.a[(np + i) * nz + np + j];
-		br[i] = loop.br[np + i];
-		by[i] = loop.by[np + i];
-	}
-	const d = discretize(ac, nc, [br, by], h);
 	const xc = new Float64Array(nc);
 	const tmp = new Float64Array(nc);
 	for (let k = 0; k < count; k++) {
-		let s = wr * r + wy * y[k] + (dy ? wdy * dy[k] : 0);
-		for (let i = 0; i < nc; i++) s += kz[np + i] * xc[i];
+		let s = base + wy * y[k] + (dy ? wdy * dy[k] : 0);
+		for (let i = 0; i < nc; i++) s += kc[i] * xc[i];
 		out[k] = s;
 		if (k === count - 1) break;
 		const y0 = y[k];
-		const y1 = y[k + 1];
+		const dyk = y[k + 1] - y0;
 		for (let i = 0; i < nc; i++) {
-			let v = d.g0[0][i] * r + d.g0[1][i] * y0 + d.g1[1][i] * (y1 - y0);
-			for (let j = 0; j < nc; j++) v += d.phi[i * nc + j] * xc[j];
+			let v = gr[i] * r + gy0[i] * y0 + gy1[i] * dyk;
+			for (let j = 0; j < nc; j++) v += phi[i * nc + j] * xc[j];
 			tmp[i] = v;
 		}
 		xc.set(tmp);
