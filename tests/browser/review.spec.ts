@@ -237,7 +237,7 @@ describe('review journey', () => {
 		expect(await shows(params.getByRole('row'), 'Gain K')).toContain('+30 %');
 		expect(await shows(params.getByRole('row'), 'Dead time θ')).not.toContain('unchanged');
 		const texts = reviewerTwoPage.getByRole('region', { name: 'Texts' });
-		expect((await shows(texts, `test ${RUN}`)).toLowerCase()).toContain('change summary');
+		expect((await shows(texts, RUN)).toLowerCase()).toContain('change summary');
 		await visible(texts.getByRole('insertion').filter({ hasText: RUN }));
 		await visible(reviewerTwoPage.getByRole('img', { name: /Open-loop step responses/ }));
 		await reviewerTwoPage.getByRole('heading', { name: /Revision \d+ → revision \d+/ }).scrollIntoViewIfNeeded();
