@@ -280,7 +280,7 @@ export class BenchState {
 		this.mv = input.mv;
 		this.savedSets = input.savedSets ?? [];
 		this.timeUnit = input.timeUnit;
-		this.timeScale = plantTimeScale(this.plant.den, this.plant.delay);
+		this.timeScale = plantTimeScale(this.plant.den, this.plant.delay, this.plant.num);
 		this.effectiveGain = plantEffectiveGain(this.plant.num, this.plant.den, this.plant.delay);
 		const pvSpan = this.pv.max - this.pv.min;
 		const mvSpan = this.mv.max - this.mv.min;
@@ -306,9 +306,13 @@ export class BenchState {
 		const T = this.timeScale;
 		const sign = this.effectiveGain !== null && this.effectiveGain < 0 ? -1 : 1;
 		const kpRef = this.effectiveGain !== null ? 0.5 / Math.abs(this.effectiveGain) : 1;
-		// Defaults from the plant; replaced below by a saved tuning set or a published rule.
-		this.#applyRaw({ type: 'PI', form: 'ideal', kp: sign * kpRef, ti: T, td: T / 8, n: DEFAULT_FILTER_N });
-		this.td = this.ti / 8;
+		// Defaults from the plant (SIMC-like with τc = θ = T: Kp = 1/(2·K·T) per unit of effective
+		// gain; Ti = T, or 8T with an integrator — Skogestad 2003); replaced below by a saved tuning
+		// set or a published rule where one applies.
+		const d = this.plant.den;
+		const integrating = d.length > 1 && d[d.length - 1] === 0;
+		const ti = integrating ? 8 * T : T;
+		this.#applyRaw({ type: 'PI', form: 'ideal', kp: sign * kpRef, ti, td: ti / 8, n: DEFAULT_FILTER_N });
 		this.#centreScales(Math.abs(this.kp), T);
 		const approved = this.savedSets.find((s) => s.state === 'approved');
 		if (approved) {

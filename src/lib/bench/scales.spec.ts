@@ -76,6 +76,12 @@ describe('plant magnitudes', () => {
 		expect(plantTimeScale([1, 0], 0)).toBe(1);
 	});
 
+	it('counts a right-half-plane zero (−Ts + 1) as extra dead time, a left-half-plane one not (Skogestad 2003, half rule)', () => {
+		// 0.0035(−8s + 1)/(s(4s + 1))·e^(−2s): lag 4 s, dead time 2 s, RHP zero 8 s.
+		expect(plantTimeScale([4, 1, 0], 2, [-0.028, 0.0035])).toBeCloseTo(14, 12);
+		expect(plantTimeScale([4, 1, 0], 2, [0.028, 0.0035])).toBeCloseTo(6, 12);
+	});
+
 	it('gives the steady-state gain of a self-regulating plant and Kv·T of an integrating one', () => {
 		expect(plantEffectiveGain([1.2], [4, 1], 0.8)).toBeCloseTo(1.2, 15);
 		expect(plantEffectiveGain([0.5], [1, 0], 2)).toBeCloseTo(1, 15);

@@ -81,12 +81,14 @@ function trailingZeros(p: readonly number[]): number {
 }
 
 /**
- * A characteristic time of a plant with denominator `den` and dead time θ in seconds, to centre the Ti and Td sliders:
- * θ plus the larger of the sum of the time constants (a1/a0 of the denominator without its
- * poles at the origin; the sum of the τi of Π(τi s + 1)) and 1/ωn = √(a2/a0) (for lightly damped
- * poles, where a1/a0 is small). Falls back to θ, then to 1 s. Always finite and > 0.
+ * A characteristic time of a plant with denominator `den`, numerator `num` and dead time θ in
+ * seconds, to centre the Ti and Td sliders: θ plus the larger of the sum of the time constants
+ * (a1/a0 of the denominator without its poles at the origin; the sum of the τi of Π(τi s + 1))
+ * and 1/ωn = √(a2/a0) (for lightly damped poles, where a1/a0 is small), plus the time constant
+ * T = −b1/b0 of a right-half-plane zero (−Ts + 1), which acts like extra dead time (Skogestad
+ * 2003, half rule). Falls back to θ, then to 1 s. Always finite and > 0.
  */
-export function plantTimeScale(den: readonly number[], delay: number): number {
+export function plantTimeScale(den: readonly number[], delay: number, num: readonly number[] = []): number {
 	const d = trimLeading(den);
 	const k = trailingZeros(d);
 	const core = d.slice(0, d.length - k);
@@ -99,7 +101,13 @@ export function plantTimeScale(den: readonly number[], delay: number): number {
 		lag = Math.abs(a1 / a0);
 		if (n >= 3) lag = Math.max(lag, Math.sqrt(Math.abs(core[n - 3] / a0)));
 	}
-	const t = lag + theta;
+	const nn = trimLeading(num);
+	const kz = trailingZeros(nn);
+	const ncore = nn.slice(0, nn.length - kz);
+	const m = ncore.length;
+	// (−Ts + 1)·… has b1/b0 < 0: the sum of the right-half-plane zero time constants when alone.
+	const rhp = m >= 2 && ncore[m - 1] !== 0 && ncore[m - 2] / ncore[m - 1] < 0 ? -ncore[m - 2] / ncore[m - 1] : 0;
+	const t = lag + theta + (Number.isFinite(rhp) ? rhp : 0);
 	if (Number.isFinite(t) && t > 0) return t;
 	return theta > 0 ? theta : 1;
 }
@@ -117,7 +125,7 @@ export function plantEffectiveGain(num: readonly number[], den: readonly number[
 	const n0 = nn[nn.length - 1];
 	const d0 = d[d.length - 1 - r];
 	if (!n0 || !d0) return null;
-	const g = (n0 / d0) * Math.pow(plantTimeScale(den, delay), r);
+	const g = (n0 / d0) * Math.pow(plantTimeScale(den, delay, num), r);
 	return Number.isFinite(g) && g !== 0 ? g : null;
 }
 
