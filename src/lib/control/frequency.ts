@@ -348,10 +348,14 @@ export function maxSensitivity(m: LoopModel, grid: ArrayLike<number>, values?: G
 	}
 	let best = Infinity;
 	let bestW: number | null = null;
+	// Only local minima within 20 % of the lowest grid value can hold the global minimum (on this
+	// grid, refinement lowers a sampled minimum by far less).
+	let gridMin = Infinity;
+	for (let i = 0; i < n; i++) gridMin = Math.min(gridMin, f[i]);
 	for (let i = 0; i < n; i++) {
 		const left = i > 0 ? f[i - 1] : Infinity;
 		const right = i < n - 1 ? f[i + 1] : Infinity;
-		if (f[i] <= left && f[i] <= right) {
+		if (f[i] <= left && f[i] <= right && f[i] <= 1.2 * gridMin) {
 			let w = grid[i];
 			let v = f[i];
 			if (i > 0 && i < n - 1) {

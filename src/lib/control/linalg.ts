@@ -123,10 +123,25 @@ export function solve(a: Matrix, b: Matrix): Matrix {
 	return { rows: n, cols: m, data: x };
 }
 
+/** out = a·b for n×n row-major arrays (out must not alias a or b). */
+function mulInto(a: Float64Array, b: Float64Array, out: Float64Array, n: number): void {
+	out.fill(0);
+	for (let i = 0; i < n; i++) {
+		const io = i * n;
+		for (let p = 0; p < n; p++) {
+			const v = a[io + p];
+			if (v === 0) continue;
+			const po = p * n;
+			for (let j = 0; j < n; j++) out[io + j] += v * b[po + j];
+		}
+	}
+}
+
 /**
  * Matrix exponential e^A by scaling and squaring with the diagonal [6/6] Padé approximant
  * (Golub & Van Loan, Matrix Computations, 4th ed., Alg. 9.3.1; A is scaled so ‖A/2^s‖∞ ≤ 1/2,
- * where the [6/6] approximant is accurate to about 1e-16 relative).
+ * where the [6/6] approximant is accurate to about 1e-16 relative). Works in a few preallocated
+ * buffers (it runs on every recompute of the bench).
  */
 export function expm(a: Matrix): Matrix {
 	const n = a.rows;
@@ -135,26 +150,42 @@ export function expm(a: Matrix): Matrix {
 	if (!Number.isFinite(norm)) throw new Error('expm: non-finite matrix');
 	const s = norm > 0.5 ? Math.max(0, Math.ceil(Math.log2(norm / 0.5))) : 0;
 	const scale = Math.pow(2, -s);
-	const x = zeros(n, n);
-	for (let i = 0; i < n * n; i++) x.data[i] = a.data[i] * scale;
+	const nn = n * n;
+	const x = new Float64Array(nn);
+	for (let i = 0; i < nn; i++) x[i] = a.data[i] * scale;
 	// Padé coefficients c_j = (2q − j)! q! / ((2q)! j! (q − j)!) for q = 6.
 	const q = 6;
-	const c: number[] = [1];
-	for (let j = 1; j <= q; j++) c.push((c[j - 1] * (q - j + 1)) / (j * (2 * q - j + 1)));
-	let power = identity(n);
-	const numer = identity(n);
-	const denom = identity(n);
+	let c = 1;
+	let power = new Float64Array(nn);
+	let next = new Float64Array(nn);
+	const numer = new Float64Array(nn);
+	const denom = new Float64Array(nn);
+	for (let i = 0; i < n; i++) {
+		power[i * n + i] = 1;
+		numer[i * n + i] = 1;
+		denom[i * n + i] = 1;
+	}
 	for (let j = 1; j <= q; j++) {
-		power = matMul(power, x);
-		const sign = j % 2 === 0 ? 1 : -1;
-		for (let i = 0; i < n * n; i++) {
-			numer.data[i] += c[j] * power.data[i];
-			denom.data[i] += sign * c[j] * power.data[i];
+		c = (c * (q - j + 1)) / (j * (2 * q - j + 1));
+		mulInto(power, x, next, n);
+		const t = power;
+		power = next;
+		next = t;
+		const sc = j % 2 === 0 ? c : -c;
+		for (let i = 0; i < nn; i++) {
+			numer[i] += c * power[i];
+			denom[i] += sc * power[i];
 		}
 	}
-	let e = solve(denom, numer);
-	for (let k = 0; k < s; k++) e = matMul(e, e);
-	return e;
+	let e = solve({ rows: n, cols: n, data: denom }, { rows: n, cols: n, data: numer }).data;
+	let tmp = next;
+	for (let k = 0; k < s; k++) {
+		mulInto(e, e, tmp, n);
+		const t = e;
+		e = tmp;
+		tmp = t;
+	}
+	return { rows: n, cols: n, data: e };
 }
 
 /**

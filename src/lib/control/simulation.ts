@@ -180,18 +180,28 @@ function buildLoop(ss: StateSpace, t: ControllerTerms): Loop {
 /**
  * Exact discretisation over a length L of ẋ = A·x + Σ b_j·u_j with each input linear in time:
  * x(L) = Φ·x(0) + Σ (Γ0_j·u_j(0) + Γ1_j·(u_j(L) − u_j(0))), from one exponential of the block
- * matrix [[A, B, 0], [0, 0, I/L], [0, 0, 0]]·L (Van Loan 1978).
+ * matrix [[A, B, 0], [0, 0, R/L], [0, 0, 0]]·L (Van Loan 1978), where R selects the inputs that
+ * vary (`ramp[j]`; the others are constant over the step and get Γ1 = 0).
  */
-function discretize(a: Float64Array, n: number, cols: Float64Array[], L: number): { phi: Float64Array; g0: Float64Array[]; g1: Float64Array[] } {
+function discretize(
+	a: Float64Array,
+	n: number,
+	cols: Float64Array[],
+	L: number,
+	ramp: boolean[] = cols.map(() => true)
+): { phi: Float64Array; g0: Float64Array[]; g1: Float64Array[] } {
 	const m = cols.length;
-	const size = n + 2 * m;
+	const rampIdx: number[] = [];
+	ramp.forEach((v, j) => v && rampIdx.push(j));
+	const mr = rampIdx.length;
+	const size = n + m + mr;
 	const big = zeros(size, size);
 	const bd = big.data;
 	for (let r = 0; r < n; r++) {
 		for (let c = 0; c < n; c++) bd[r * size + c] = a[r * n + c] * L;
 		for (let j = 0; j < m; j++) bd[r * size + n + j] = cols[j][r] * L;
 	}
-	for (let j = 0; j < m; j++) bd[(n + j) * size + n + m + j] = 1;
+	rampIdx.forEach((j, k) => (bd[(n + j) * size + n + m + k] = 1));
 	const e = expm(big).data;
 	const phi = new Float64Array(n * n);
 	for (let r = 0; r < n; r++) for (let c = 0; c < n; c++) phi[r * n + c] = e[r * size + c];
@@ -199,14 +209,13 @@ function discretize(a: Float64Array, n: number, cols: Float64Array[], L: number)
 	const g1: Float64Array[] = [];
 	for (let j = 0; j < m; j++) {
 		const v0 = new Float64Array(n);
-		const v1 = new Float64Array(n);
-		for (let r = 0; r < n; r++) {
-			v0[r] = e[r * size + n + j];
-			v1[r] = e[r * size + n + m + j];
-		}
+		for (let r = 0; r < n; r++) v0[r] = e[r * size + n + j];
 		g0.push(v0);
-		g1.push(v1);
+		g1.push(new Float64Array(n));
 	}
+	rampIdx.forEach((j, k) => {
+		for (let r = 0; r < n; r++) g1[j][r] = e[r * size + n + m + k];
+	});
 	return { phi, g0, g1 };
 }
 
@@ -327,7 +336,7 @@ function simulateDelayFree(loop: Loop, h: number, points: number, limit: number)
 		br[r] = fromR + fromY * dyr;
 		bdist[r] = fromY * dyd;
 	}
-	const { phi, g0 } = discretize(acl, nz, [br, bdist], h);
+	const { phi, g0 } = discretize(acl, nz, [br, bdist], h, [false, false]);
 	const gr = g0[0];
 	const gd = g0[1];
 	const total = points;
@@ -408,8 +417,10 @@ function simulateDelayed(loop: Loop, theta: number, h: number, q: number, points
 	const LA = f * h;
 	const LB = (1 - f) * h;
 	const cols = ideal ? [loop.br, loop.by, loop.bd, loop.bdy] : [loop.br, loop.by, loop.bd];
-	const dB = discretize(loop.a, nz, cols, LB);
-	const dA = f > 0 ? discretize(loop.a, nz, cols, LA) : null;
+	// Only the delayed PV varies within a piece (the delayed steps are constant on each piece).
+	const ramp = cols.map((_, j) => j === 1);
+	const dB = discretize(loop.a, nz, cols, LB, ramp);
+	const dA = f > 0 ? discretize(loop.a, nz, cols, LA, ramp) : null;
 	// Piece vectors for the delayed PV values at the piece ends (slope term for an ideal derivative).
 	const pieceY = (d: { g0: Float64Array[]; g1: Float64Array[] }, L: number) => {
 		const y0 = new Float64Array(nz);
@@ -602,7 +613,7 @@ function discretizeController(loop: Loop, h: number): DiscreteController {
 		kc[i] = loop.kz[np + i];
 	}
 	if (nc === 0) return { nc, phi: ac, gr: br, gy0: by, gy1: by, kc };
-	const d = discretize(ac, nc, [br, by], h);
+	const d = discretize(ac, nc, [br, by], h, [false, true]);
 	return { nc, phi: d.phi, gr: d.g0[0], gy0: d.g0[1], gy1: d.g1[1], kc };
 }
 
