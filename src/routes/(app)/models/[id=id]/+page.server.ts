@@ -36,6 +36,7 @@ export const load = (async ({ params, locals, url }) => {
 			// The bench's plant in seconds, the signals for units and the proportional band, and the
 			// tuning sets it can reset to or compare (withdrawn ones left out).
 			model: { plant: { num: r.num, den: r.den, delay: r.delaySeconds }, timeUnit: r.timeUnit, pv: r.pv, mv: r.mv },
+			revisionId: r.id,
 			savedSets: model.tuningSets.filter((t) => t.state !== 'withdrawn'),
 			canSave: can(actor.role, 'tuning.save_draft'),
 			saveBlocked:
@@ -64,6 +65,12 @@ export const actions = {
 		const parsed = tuningSetSchema().safeParse(data);
 		if (!parsed.success) return fail(400, { saveTuningSet: { ok: false as const, errors: fieldErrors(parsed.error), values } });
 		try {
+			// The settings were computed on the revision the page showed: it must still be the approved one.
+			const current = await getModelPage(actorOf(user), Number(params.id));
+			if (current.approvedRevisionId === null || String(current.approvedRevisionId) !== (data.revisionId ?? '')) {
+				const message = 'The settings were computed on a revision that is not the approved one (any more). Reload the page and check them on the approved revision before saving.';
+				return fail(409, { saveTuningSet: { ok: false as const, errors: { _form: message }, values } });
+			}
 			const saved = await saveTuningDraft(
 				{ user: { id: user.id, email: user.email, name: user.name, role: user.role }, ip: getClientAddress() },
 				Number(params.id),
