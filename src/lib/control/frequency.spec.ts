@@ -121,7 +121,7 @@ describe('margins: properties', () => {
 					if (m.phaseMargin !== null && m.phaseMargin > 0) expect(m.phaseMargin).toBeGreaterThanOrEqual(((2 * Math.asin(1 / (2 * m.ms)) * 180) / Math.PI) * (1 - 1e-9));
 				}
 			),
-			{ numRuns: 200, seed: 3 }
+			{ numRuns: 1000, seed: 3 }
 		);
 	});
 });
