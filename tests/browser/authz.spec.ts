@@ -56,6 +56,10 @@ const TABLE: Record<string, Case[]> = {
 	'/(app)/register': [{ method: 'GET', path: '/register', expect: signedIn(200), signedOutTo: '/signin?redirectTo=%2Fregister' }],
 	'/(app)/models/[id=id]': [{ method: 'GET', path: '/models/{model}', expect: signedIn(200), signedOutTo: '/signin?redirectTo=' }],
 	'/(app)/assets/[id=id]': [{ method: 'GET', path: '/assets/{asset}', expect: signedIn(200) }],
+	'/(app)/guide/[slug]': [
+		{ method: 'GET', path: '/guide/step-response', expect: signedIn(200) },
+		{ method: 'GET', path: '/guide/no-such-page', expect: signedIn(404) }
+	],
 	'/(app)/sites': [{ method: 'GET', path: '/sites', expect: signedIn(200) }],
 	'/(app)/sites/[id=id]': [{ method: 'GET', path: '/sites/{site}', expect: signedIn(200) }],
 	'/(app)/areas/[id=id]': [{ method: 'GET', path: '/areas/{area}', expect: signedIn(200) }],
