@@ -73,6 +73,14 @@ const shown = (l: Locator, timeout = 15_000) => l.waitFor({ state: 'visible', ti
 const text = async (l: Locator) => (await l.innerText()).trim();
 
 const bench = (page: Page) => page.getByRole('region', { name: 'Bench' });
+
+/** The id of the approved revision shown, from the model's JSON document (GET /api/v1/models/:id). */
+async function currentRevisionId(page: Page): Promise<string> {
+	const id = /\/models\/(\d+)/.exec(page.url())?.[1];
+	const res = await page.request.get(`/api/v1/models/${id}`);
+	const doc = (await res.json()) as { revision: { id: number } };
+	return String(doc.revision.id);
+}
 const setpointTable = (page: Page) => bench(page).getByRole('table', { name: /^Set-point step of/ });
 /** The value cell of a metric row (by the metric's name). */
 const metric = (table: Locator, name: RegExp) => table.getByRole('row', { name }).getByRole('cell');
@@ -211,6 +219,35 @@ describe('the bench', () => {
 			expect(await sets.getByRole('row', { name: /BAD TAG/ }).count()).toBe(0);
 		} finally {
 			await context.close();
+		}
+	});
+
+	it('refuses a save from a viewer and one computed on another revision, on the server', async () => {
+		const post = async (page: Page, fields: Record<string, string>) => {
+			const res = await page.request.post(`${page.url()}?/saveTuningSet`, {
+				form: fields,
+				headers: { origin: BASE, accept: 'application/json', 'x-sveltekit-action': 'true' }
+			});
+			return (await res.json()) as { type: string; status?: number };
+		};
+		const fields = { loopTag: 'TIC-REFUSED', controllerType: 'PI', form: 'ideal', timeUnit: 's', kp: '1', ti: '60' };
+		const viewer = await signedIn('viewer');
+		try {
+			await openModel(viewer.page, MODEL_TITLE, false);
+			const asViewer = await post(viewer.page, { ...fields, revisionId: await currentRevisionId(viewer.page) });
+			expect(asViewer).toMatchObject({ type: 'failure', status: 403 });
+		} finally {
+			await viewer.context.close();
+		}
+		const engineer = await signedIn('engineer');
+		try {
+			await openModel(engineer.page);
+			const stale = await post(engineer.page, { ...fields, revisionId: '999999' });
+			expect(stale).toMatchObject({ type: 'failure', status: 409 });
+			await engineer.page.reload({ waitUntil: 'networkidle' });
+			expect(await engineer.page.getByRole('region', { name: 'Tuning sets' }).getByRole('row', { name: /TIC-REFUSED/ }).count()).toBe(0);
+		} finally {
+			await engineer.context.close();
 		}
 	});
 
