@@ -14,7 +14,7 @@ import type { ControllerTerms } from './controller';
 import { controllerPolynomials } from './controller';
 import { AnalysisInputError } from './errors';
 import { polyAdd, polyDegree, polyMaxAbs, polyMul, polySub, polyTrailingZeros, polyTrim } from './polynomial';
-import { roots } from './roots';
+import { roots, sortRoots } from './roots';
 import { pade } from './transfer-function';
 
 /** θ·|p|max below which a dead time is neglected for closed-loop poles (|p|max: Fujiwara's bound on the delay-free poles). */
@@ -268,7 +268,10 @@ export function analyzeClosedLoop(plant: TransferFunction, terms: ControllerTerm
 	const den = polys.char.map((c) => c / lead);
 	const num = polys.ry.map((c) => c / lead);
 	const poles = roots(polys.char);
-	const zeros = roots(polys.ry);
+	// Zeros of ry = nr·ng(·Padé numerator): the union of the factors' roots (cheaper and more
+	// accurate than the roots of the product).
+	const { nr } = controllerPolynomials(terms);
+	const zeros = sortRoots([...roots(nr), ...roots(plant.num), ...(delayed ? roots(pade(plant.delay, padeOrder).num) : [])]);
 	const counts = classifyPoles(poles);
 	const routh = routhHurwitz(polys.char);
 	let stable = counts.rhp === 0 && counts.axis === 0;

@@ -8,7 +8,7 @@
  * in ω, so the total phase needs no unwrapping and no overflow can occur at high order.
  */
 import type { Complex } from './types';
-import { polyTrailingZeros, polyTrim } from './polynomial';
+import { polyTrim } from './polynomial';
 import { roots } from './roots';
 import { brentMinimize, newtonBracketed } from './solvers';
 
@@ -37,24 +37,30 @@ export function loopModel(num: readonly number[], den: readonly number[], delay 
 	const n = polyTrim(num);
 	const d = polyTrim(den);
 	if (n.length === 0 || d.length === 0) throw new Error('loopModel: zero numerator or denominator');
-	const zeros = roots(n);
-	const poles = roots(d);
-	const gain = n[0] / d[0];
+	return loopModelFromFactors(n[0] / d[0], roots(n), roots(d), delay);
+}
+
+/**
+ * Loop model k·Π(s − zᵢ)/Π(s − pᵢ)·e^(−delay·s) from its factors (e.g. the union of controller
+ * and plant roots, which is cheaper and more accurate than the roots of the product).
+ */
+export function loopModelFromFactors(gain: number, zeros: Complex[], poles: Complex[], delay = 0): LoopModel {
 	const corners: number[] = [];
 	for (const r of [...zeros, ...poles]) {
 		const m = Math.hypot(r.re, r.im);
 		if (m > 0) corners.push(m);
 	}
 	if (delay > 0) corners.push(1 / delay);
-	const relativeDegree = d.length - n.length;
+	const relativeDegree = poles.length - zeros.length;
 	if (corners.length === 0) corners.push(relativeDegree > 0 ? Math.pow(Math.abs(gain), 1 / relativeDegree) : 1);
+	const atOrigin = (rs: Complex[]) => rs.filter((r) => r.re === 0 && r.im === 0).length;
 	const model: LoopModel = {
 		gain,
 		zeros,
 		poles,
 		delay,
 		relativeDegree,
-		systemType: polyTrailingZeros(d) - polyTrailingZeros(n),
+		systemType: atOrigin(poles) - atOrigin(zeros),
 		phaseOffset: 0,
 		corners,
 		zr: Float64Array.from(zeros.map((z) => z.re)),

@@ -6,7 +6,9 @@
 import type { Complex, TransferFunction } from './types';
 import type { ControllerTerms } from './controller';
 import { analyzeClosedLoop, DEFAULT_PADE_ORDER, errorConstants, steadyStateErrors, type ClosedLoopReport, type ErrorConstants, type SteadyStateErrors } from './closed-loop';
-import { analysisGrid, bode, evaluateLoop, frequencyRange, logspace, loopModel, stabilityMargins, type BodeData, type Margins } from './frequency';
+import { analysisGrid, bode, evaluateLoop, frequencyRange, logspace, loopModelFromFactors, stabilityMargins, type BodeData, type Margins } from './frequency';
+import { controllerPolynomials } from './controller';
+import { roots, sortRoots } from './roots';
 import { disturbanceMetrics, stepMetrics, type DisturbanceMetrics, type StepMetrics } from './metrics';
 import { simulateLoop, type SimulationResult } from './simulation';
 
@@ -131,7 +133,15 @@ export function analyzeLoop(plant: TransferFunction, terms: ControllerTerms, opt
 		for (const k of Object.keys(nullDist)) disturbanceReasons[k] = why;
 	}
 
-	const model = loopModel(cl.exact.loopNum, cl.exact.loopDen, plant.delay);
+	const { nc, dc } = controllerPolynomials(terms);
+	const plantZeros = roots(plant.num);
+	const plantPoles = roots(plant.den);
+	const model = loopModelFromFactors(
+		(nc[0] * plant.num[0]) / (dc[0] * plant.den[0]),
+		sortRoots([...roots(nc), ...plantZeros]),
+		sortRoots([...roots(dc), ...plantPoles]),
+		plant.delay
+	);
 	const range = frequencyRange(model);
 	const display = logspace(range.wMin, range.wMax, opts.bodePoints ?? 400);
 	const grid = analysisGrid(model, display);
