@@ -33,6 +33,7 @@ export const MAX_COMPARE = 4;
 /** Default derivative filter N: 10 (typical range 5–20; common practice, Åström & Hägglund 1995, from memory). */
 export const DEFAULT_FILTER_N = 10;
 
+/** The display time unit of the bench (the model's, or the person's choice). */
 export type TimeUnit = 's' | 'min';
 /** Settings the bench edits; `band` is the proportional band in %, the others as in ControllerSettings. */
 export type ParamKey = 'kp' | 'band' | 'ti' | 'td' | 'ki' | 'kd' | 'n' | 'b' | 'c';

@@ -42,7 +42,7 @@ export function poleView(poles: readonly Complex[], zeros: readonly Complex[], h
 	return { xMin: lo, xMax, yMin: -half, yMax: half };
 }
 
-/** A complex number as text: `−0.5`, `−0.5 ± 1.2j` style halves are written by the caller; here `a + bj` / `a − bj`. */
+/** A complex number as text, `a + bj` or `a − bj` (a real number alone when the imaginary part is negligible), with the minus sign U+2212. */
 export function formatComplex(p: Complex, sig = 4): string {
 	const re = formatSig(p.re, sig).replace('-', '−');
 	if (Math.abs(p.im) <= 1e-12 * Math.max(1, Math.abs(p.re))) return re;

@@ -15,6 +15,7 @@ import { runJob, type JobKind, type JobMessage, type JobResult } from './jobs';
 /** A finished job with the caller's tag (e.g. the input time it answers) and where it ran. */
 export type RunnerResult<M> = JobResult & { meta: M | undefined; ranInline: boolean };
 
+/** The job scheduler described above; `M` is the caller's tag carried from `schedule` to the result. */
 export class AnalysisRunner<M = unknown> {
 	#worker: Worker | null = null;
 	#busy: { id: number; meta: M | undefined; inline: boolean } | null = null;
