@@ -5,7 +5,7 @@ How to regenerate (Debian: ``apt-get install python3-scipy``; written for SciPy 
 
     /usr/bin/python3 tests/reference/generate_analysis_fixtures.py
 
-writes ``tests/reference/fixtures/analysis-cases.json`` (takes a minute or two). The spec
+writes ``tests/reference/fixtures/analysis-cases.json`` (takes several minutes: the dead-time cases run a 50 000-step loop in Python). The spec
 ``tests/reference/analysis-reference.spec.ts`` runs the TypeScript engine on the same cases and
 compares.
 
@@ -161,16 +161,6 @@ def complex_list(z):
 
 
 # ---------------------------------------------------------------- time responses
-
-def foh_matrices(a, b, h):
-    n, m = a.shape[0], b.shape[1]
-    em = np.zeros((n + 2 * m, n + 2 * m))
-    em[:n, :n] = a * h
-    em[:n, n:n + m] = b * h
-    em[n:n + m, n + m:] = np.eye(m)
-    ms = linalg.expm(em)
-    return ms[:n, :n], ms[:n, n:n + m], ms[:n, n + m:]
-
 
 def simulate_delay(cl, case, t_end, steps=50000):
     """Fine-step simulation with a delay line on the plant input (see module docstring)."""
