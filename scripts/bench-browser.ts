@@ -135,7 +135,12 @@ async function main(): Promise<number> {
 		const { model, fourthOrder } = await chooseModel(page);
 		log(`signed in as ${viewer.email} (viewer)`);
 		log(`model #${model.id} "${model.title}": order ${model.order}, dead time ${model.delay} s`);
-		if (!fourthOrder) log(`NOTE: no approved model of order ≥ 4 with dead time is visible; measured on the highest-order model with dead time instead.`);
+		if (!fourthOrder)
+			log(
+				option('model')
+					? `NOTE: model #${model.id} is not of order ≥ 4 with dead time.`
+					: 'NOTE: no approved model of order ≥ 4 with dead time is visible; measured on the highest-order model with dead time instead.'
+			);
 
 		await page.goto(`/models/${model.id}`, { waitUntil: 'networkidle' });
 		await page.waitForFunction(() => window.__loopledgerBench?.ready === true, null, { timeout: 30_000 });
