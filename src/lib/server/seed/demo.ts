@@ -825,6 +825,30 @@ const MODELS: DemoModel[] = [
 		]
 	},
 	{
+		tag: 'TIC-7101',
+		title: 'CIP supply temperature from steam valve, four-lag fit',
+		timeUnit: 's',
+		mv: pct('Steam valve'),
+		pv: { name: 'CIP supply temperature', unit: '°C', min: 20, max: 90 },
+		revisions: [
+			approved({
+				structure: 'rational',
+				// 0.8 / ((60s + 1)(30s + 1)(15s + 1)(8s + 1)), delay 20 s: heater shell, line and probe lags kept apart.
+				params: { num: [0.8], den: [216000, 52200, 3990, 113, 1], theta: 20 },
+				method: 'least_squares',
+				testedDaysAgo: 70,
+				fit: { r2: 0.991, rmse: 0.3 },
+				op: { mv: 62, pv: 75, note: 'Caustic wash, 18 m³/h; same test as the first-order model, fitted with four lags.' },
+				validRange: 'Valve 40–85 %, 65–82 °C',
+				revalidateInDays: 295,
+				author: 'marek',
+				reviewer: 'ines',
+				createdDaysAgo: 68,
+				changeSummary: 'Higher-order fit of the supply-temperature step test, for checking derivative action.'
+			})
+		]
+	},
+	{
 		tag: 'FIC-7102',
 		title: 'CIP supply flow from pump speed',
 		timeUnit: 's',
