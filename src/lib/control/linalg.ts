@@ -156,8 +156,8 @@ export function expm(a: Matrix): Matrix {
 	// Padé coefficients c_j = (2q − j)! q! / ((2q)! j! (q − j)!) for q = 6.
 	const q = 6;
 	let c = 1;
-	let power = new Float64Array(nn);
-	let next = new Float64Array(nn);
+	let power: Float64Array = new Float64Array(nn);
+	let next: Float64Array = new Float64Array(nn);
 	const numer = new Float64Array(nn);
 	const denom = new Float64Array(nn);
 	for (let i = 0; i < n; i++) {
@@ -177,8 +177,8 @@ export function expm(a: Matrix): Matrix {
 			denom[i] += sc * power[i];
 		}
 	}
-	let e = solve({ rows: n, cols: n, data: denom }, { rows: n, cols: n, data: numer }).data;
-	let tmp = next;
+	let e: Float64Array = solve({ rows: n, cols: n, data: denom }, { rows: n, cols: n, data: numer }).data;
+	let tmp: Float64Array = next;
 	for (let k = 0; k < s; k++) {
 		mulInto(e, e, tmp, n);
 		const t = e;
