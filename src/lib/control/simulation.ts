@@ -9,10 +9,13 @@
  * signals r(t − θ), y(t − θ), and the plant input is w + d(t − θ). The controller and plant
  * states are integrated by their exact discretisation (matrix exponential; Van Loan, IEEE Trans.
  * Autom. Control 23 (1978) 395–404) with the delayed PV interpolated linearly between samples (a
- * first-order hold) and the delayed step placed exactly at t = θ, even between samples. The MV
- * u = Cr·r − C·y is then computed in original time from the controller alone, driven by the step
- * and the simulated PV (same interpolation). The only approximation is that interpolation (error
- * O(h²) for a smooth PV).
+ * first-order hold) and the delayed step placed exactly at t = θ, even between samples. Only the
+ * load-step response y_d is simulated this way; the set-point response follows from it exactly as
+ * y_r = Cr·y_d (Y_r(s) = Cr(s)·Y_d(s)), the set-point path applied to the sampled y_d — except
+ * with an ideal derivative on the set-point (c ≠ 0), which is simulated directly. The MV
+ * u = Cr·r − C·y is computed in original time from the controller alone, driven by the step and
+ * the PV (same interpolation). The only approximation is that interpolation (error O(h²) for a
+ * smooth PV).
  * Without dead time the closed loop is discretised exactly (zero-order hold of the constant
  * step input is exact).
  *
@@ -282,7 +285,7 @@ export function simulateLoop(plant: TransferFunction, terms: ControllerTerms, op
 		}
 	}
 	const h = dt / q;
-	const result = useDelay ? simulateDelayed(loop, theta, h, q, points, limit) : simulateDelayFree(loop, h, points, limit);
+	const result = useDelay ? simulateDelayed(loop, theta, h, q, points, limit, terms) : simulateDelayFree(loop, h, points, limit);
 	result.notes.unshift(...notes);
 	return result;
 }
@@ -402,10 +405,24 @@ function simulateDelayFree(loop: Loop, h: number, points: number, limit: number)
 	};
 }
 
-function simulateDelayed(loop: Loop, theta: number, h: number, q: number, points: number, limit: number): SimulationResult {
-	const { nz, np, ss, kz, wr, wy, wdy, cpAp, cpBp } = loop;
-	const dp = ss.d;
-	const ideal = wdy !== 0;
+interface DelayLine {
+	nz: number;
+	np: number;
+	f: number;
+	M: number;
+	phi: Float64Array;
+	cm1: Float64Array;
+	c0: Float64Array;
+	cp1: Float64Array;
+	constS: Float64Array;
+	constD: Float64Array;
+	constS0: Float64Array;
+	constD0: Float64Array;
+}
+
+function delayLineSetup(loop: Loop, theta: number, h: number): DelayLine {
+	const { nz, np, ss } = loop;
+	const ideal = loop.wdy !== 0;
 	const ratio = theta / h;
 	let M = Math.floor(ratio + 1e-9);
 	let f = ratio - M;
@@ -454,105 +471,156 @@ function simulateDelayed(loop: Loop, theta: number, h: number, q: number, points
 		for (let r = 0; r < np; r++) raw[r] = ss.b[r] * loop.impulse;
 		matVecInto(dB.phi, nz, raw, impulseVec);
 	}
-	const nFine = (points - 1) * q + 1;
 	// Contributions of the delayed PV samples y(j−1), y(j), y(j+1) to the next state, with
 	// yA0 = f·y(j−1) + (1−f)·y(j), yA1 = yB0 = y(j), yB1 = f·y(j) + (1−f)·y(j+1).
-	const cm1 = new Float64Array(nz);
-	const c0 = new Float64Array(nz);
-	const cp1 = new Float64Array(nz);
-	const constS = new Float64Array(nz); // r(t − θ) = 1 on both pieces (j ≥ 1)
-	const constD = new Float64Array(nz);
-	const constS0 = new Float64Array(nz); // j = 0: the step (and impulse) arrives at the breakpoint
-	const constD0 = new Float64Array(nz);
-	const zeroVec = new Float64Array(nz);
+	const dl: DelayLine = {
+		nz,
+		np,
+		f,
+		M,
+		phi,
+		cm1: new Float64Array(nz),
+		c0: new Float64Array(nz),
+		cp1: new Float64Array(nz),
+		constS: new Float64Array(nz), // r(t − θ) = 1 on both pieces (j ≥ 1)
+		constD: new Float64Array(nz),
+		constS0: new Float64Array(nz), // j = 0: the step (and impulse) arrives at the breakpoint
+		constD0: new Float64Array(nz)
+	};
 	for (let r = 0; r < nz; r++) {
-		cm1[r] = f * hA0[r];
-		c0[r] = (1 - f) * hA0[r] + hA1[r] + B.y0[r] + f * B.y1[r];
-		cp1[r] = (1 - f) * B.y1[r];
-		constS[r] = hrA[r] + grB[r];
-		constD[r] = hdA[r] + gdB[r];
-		constS0[r] = grB[r] + impulseVec[r];
-		constD0[r] = gdB[r];
+		dl.cm1[r] = f * hA0[r];
+		dl.c0[r] = (1 - f) * hA0[r] + hA1[r] + B.y0[r] + f * B.y1[r];
+		dl.cp1[r] = (1 - f) * B.y1[r];
+		dl.constS[r] = hrA[r] + grB[r];
+		dl.constD[r] = hdA[r] + gdB[r];
+		dl.constS0[r] = grB[r] + impulseVec[r];
+		dl.constD0[r] = gdB[r];
 	}
-	const Ys = new Float64Array(nFine);
-	const Yd = new Float64Array(nFine);
-	const DYs = new Float64Array(nFine);
-	const DYd = new Float64Array(nFine);
-	const zs = new Float64Array(nz);
-	const zd = new Float64Array(nz);
-	const ts = new Float64Array(nz);
-	const td = new Float64Array(nz);
-	const cpe = new Float64Array(nz);
-	for (let c = 0; c < np; c++) cpe[c] = ss.c[c];
-	let count = nFine;
-	let truncatedAt: number | null = null;
-	for (let k = 0; k < nFine; k++) {
+	return dl;
+}
+
+/**
+ * One response through the delay line: set-point step (setpoint = true) or load step. Fills Y
+ * and DY (exact dy/dt when the plant has no direct feedthrough) and returns the number of
+ * valid samples (fewer when |y| exceeded the limit).
+ */
+function delayLineRun(loop: Loop, dl: DelayLine, setpoint: boolean, n: number, limit: number, Y: Float64Array, DY: Float64Array): number {
+	const { nz, np, f, M, phi, cm1, c0, cp1 } = dl;
+	const { ss, kz, wr, wy, wdy, cpAp, cpBp } = loop;
+	const dp = ss.d;
+	const ideal = wdy !== 0;
+	const constFull = setpoint ? dl.constS : dl.constD;
+	const constFirst = setpoint ? dl.constS0 : dl.constD0;
+	const z = new Float64Array(nz);
+	const t = new Float64Array(nz);
+	const cpe = ss.c;
+	for (let k = 0; k < n; k++) {
 		const j = k - M;
-		const yj1s = j >= 1 ? Ys[j - 1] : 0;
-		const yjs = j >= 0 ? Ys[j] : 0;
-		const yj1d = j >= 1 ? Yd[j - 1] : 0;
-		const yjd = j >= 0 ? Yd[j] : 0;
+		if (j < -1) {
+			// Nothing has reached the plant yet: the state stays at rest.
+			Y[k] = 0;
+			DY[k] = 0;
+			continue;
+		}
+		const yj1 = j >= 1 ? Y[j - 1] : 0;
+		const yj = j >= 0 ? Y[j] : 0;
 		// Node outputs at t_k (right limits).
 		const stepNow = j >= 1 || (j === 0 && f === 0) ? 1 : 0;
-		let dyDelS = 0;
-		let dyDelD = 0;
-		if (ideal) {
-			dyDelS = f * (j >= 1 ? DYs[j - 1] : 0) + (1 - f) * (j >= 0 ? DYs[j] : 0);
-			dyDelD = f * (j >= 1 ? DYd[j - 1] : 0) + (1 - f) * (j >= 0 ? DYd[j] : 0);
-		}
+		let dyDel = 0;
+		if (ideal) dyDel = f * (j >= 1 ? DY[j - 1] : 0) + (1 - f) * (j >= 0 ? DY[j] : 0);
 		// Kz acts on the controller states only, Cp and Cp·Ap on the plant states only.
-		let kzs = 0;
-		let kzd = 0;
-		let cps = 0;
-		let cpd = 0;
-		let das = 0;
-		let dad = 0;
+		let kzz = 0;
+		let cpz = 0;
+		let daz = 0;
 		for (let c = 0; c < np; c++) {
-			const a = zs[c];
-			const b = zd[c];
-			cps += cpe[c] * a;
-			cpd += cpe[c] * b;
-			das += cpAp[c] * a;
-			dad += cpAp[c] * b;
+			cpz += cpe[c] * z[c];
+			daz += cpAp[c] * z[c];
 		}
-		for (let c = np; c < nz; c++) {
-			kzs += kz[c] * zs[c];
-			kzd += kz[c] * zd[c];
+		for (let c = np; c < nz; c++) kzz += kz[c] * z[c];
+		const v = kzz + wy * (f * yj1 + (1 - f) * yj) + wdy * dyDel + (setpoint ? wr * stepNow : stepNow);
+		const yk = cpz + dp * v;
+		Y[k] = yk;
+		DY[k] = dp === 0 ? daz + cpBp * v : 0;
+		if (!(Math.abs(yk) <= limit)) return Math.max(1, k);
+		if (k === n - 1) break;
+		const yjp1 = j + 1 >= 0 ? Y[j + 1] : 0;
+		const kc = j >= 1 ? constFull : j === 0 ? constFirst : null;
+		for (let r = 0; r < nz; r++) {
+			let a = cm1[r] * yj1 + c0[r] * yj + cp1[r] * yjp1 + (kc !== null ? kc[r] : 0);
+			const o = r * nz;
+			for (let c = 0; c < nz; c++) a += phi[o + c] * z[c];
+			t[r] = a;
 		}
-		const vs = kzs + wr * stepNow + wy * (f * yj1s + (1 - f) * yjs) + wdy * dyDelS;
-		const vd = kzd + wy * (f * yj1d + (1 - f) * yjd) + wdy * dyDelD + stepNow;
-		const ysk = cps + dp * vs;
-		const ydk = cpd + dp * vd;
-		Ys[k] = ysk;
-		Yd[k] = ydk;
-		if (dp === 0) {
-			DYs[k] = das + cpBp * vs;
-			DYd[k] = dad + cpBp * vd;
+		z.set(t);
+	}
+	return n;
+}
+
+/**
+ * Applies the set-point path Cr(s) = b·p + i/s + c·d·s/(1 + Tf·s) to a sampled signal x (linear
+ * between samples; exact discretisation), with its derivative when dx is given (null when the
+ * derivative would need d²x/dt², i.e. an ideal derivative with c ≠ 0). Used for y_r = Cr·y_d:
+ * the set-point response equals the set-point path applied to the load-step response, since
+ * Y_r(s) = Cr·G·e^(−θs)/(1 + C·G·e^(−θs))·1/s = Cr(s)·Y_d(s).
+ */
+function setpointPathOf(t: ControllerTerms, h: number, x: Float64Array, dx: Float64Array | null, count: number, out: Float64Array, dout: Float64Array | null): boolean {
+	const p = t.b * t.p;
+	const cd = t.c * t.d;
+	const hasI = t.i !== 0;
+	const filtered = cd !== 0 && t.tf > 0;
+	const idealD = cd !== 0 && t.tf === 0;
+	// States: integral of x; filter state xf' = (x − xf)/Tf.
+	let xi = 0;
+	let xf = 0;
+	// Exact FOH coefficients for the two scalar states over one step.
+	const oneMinusE = filtered ? -Math.expm1(-h / t.tf) : 0;
+	const eF = 1 - oneMinusE;
+	// For xf' = (x − xf)/Tf with x linear on the step: xf1 = eF·xf0 + (1 − eF)·x0 + g1·(x1 − x0),
+	// g1 = 1 − (Tf/h)(1 − eF) (Van Loan 1978 in closed form for a scalar).
+	const g1 = filtered ? 1 - (t.tf / h) * oneMinusE : 0;
+	const derivOk = dx !== null && !idealD;
+	for (let k = 0; k < count; k++) {
+		const xk = x[k];
+		let v = p * xk;
+		if (hasI) v += t.i * xi;
+		if (filtered) v += (cd / t.tf) * (xk - xf);
+		if (idealD) v += cd * (dx ? dx[k] : 0);
+		out[k] = v;
+		if (dout && derivOk && dx) {
+			let d = p * dx[k];
+			if (hasI) d += t.i * xk;
+			if (filtered) d += (cd / t.tf) * (dx[k] - (xk - xf) / t.tf);
+			dout[k] = d;
 		}
-		if (!(Math.abs(ysk) <= limit && Math.abs(ydk) <= limit)) {
+		if (k === count - 1) break;
+		const x1 = x[k + 1];
+		if (hasI) xi += 0.5 * h * (xk + x1);
+		if (filtered) xf = eF * xf + oneMinusE * xk + g1 * (x1 - xk);
+	}
+	return derivOk;
+}
+
+function simulateDelayed(loop: Loop, theta: number, h: number, q: number, points: number, limit: number, terms: ControllerTerms): SimulationResult {
+	const dp = loop.ss.d;
+	const ideal = loop.wdy !== 0;
+	const dl = delayLineSetup(loop, theta, h);
+	const nFine = (points - 1) * q + 1;
+	const Yd = new Float64Array(nFine);
+	const DYd = new Float64Array(nFine);
+	const Ys = new Float64Array(nFine);
+	let DYs: Float64Array | null = new Float64Array(nFine);
+	let count = delayLineRun(loop, dl, false, nFine, limit, Yd, DYd);
+	if (loop.impulse !== 0) {
+		// Ideal derivative on the set-point: y_r = Cr·y_d would need d²y_d/dt²; simulate it directly.
+		count = Math.min(count, delayLineRun(loop, dl, true, nFine, limit, Ys, DYs));
+	} else if (!setpointPathOf(terms, h, Yd, dp === 0 ? DYd : null, count, Ys, DYs)) DYs = null;
+	let truncatedAt: number | null = count < nFine ? count * h : null;
+	for (let k = 0; k < count; k++) {
+		if (!(Math.abs(Ys[k]) <= limit)) {
 			count = Math.max(1, k);
 			truncatedAt = k * h;
 			break;
 		}
-		if (k === nFine - 1) break;
-		const yjp1s = j + 1 >= 0 ? Ys[j + 1] : 0;
-		const yjp1d = j + 1 >= 0 ? Yd[j + 1] : 0;
-		const kS = j >= 1 ? constS : j === 0 ? constS0 : zeroVec;
-		const kD = j >= 1 ? constD : j === 0 ? constD0 : zeroVec;
-		for (let r = 0; r < nz; r++) {
-			let a = cm1[r] * yj1s + c0[r] * yjs + cp1[r] * yjp1s + kS[r];
-			let b = cm1[r] * yj1d + c0[r] * yjd + cp1[r] * yjp1d + kD[r];
-			const o = r * nz;
-			for (let c = 0; c < nz; c++) {
-				const p = phi[o + c];
-				a += p * zs[c];
-				b += p * zd[c];
-			}
-			ts[r] = a;
-			td[r] = b;
-		}
-		zs.set(ts);
-		zd.set(td);
 	}
 	// The MV u = Cr·r − C·y in original time, from the controller states driven by the step r and
 	// the simulated PV (linear between samples, as inside the delay line).
@@ -573,7 +641,7 @@ function simulateDelayed(loop: Loop, theta: number, h: number, q: number, points
 	const cut = (x: Float64Array) => (x.length === count ? x : x.slice(0, count));
 	const fine = {
 		t: tFine,
-		setpoint: { y: cut(Ys), u: cut(Us), dy: dp === 0 ? cut(DYs) : null },
+		setpoint: { y: cut(Ys), u: cut(Us), dy: dp === 0 && DYs ? cut(DYs) : null },
 		disturbance: { y: cut(Yd), u: cut(Ud), dy: dp === 0 ? cut(DYd) : null }
 	};
 	const userCount = Math.floor((count - 1) / q) + 1;
