@@ -532,15 +532,23 @@ const imc: RuleFn = (ctx) => {
 	const m = fopdtView(ctx, warnings);
 	const lambda = parameterOr(ctx, imcDefault(m, ctx.controller), 'λ');
 	if (ctx.controller === 'PI') {
-		if (m.theta > 0 && lambda / m.theta < 1.7)
+		if (m.theta > 0 && clearlyBelow(lambda, 1.7 * m.theta))
 			warnings.push(`λ/θ = ${fmt(lambda / m.theta)} is below the 1.7 recommended for IMC PI; expect poor robustness.`);
 		return { form: 'ideal', kp: m.tau / (m.k * lambda), ti: m.tau, td: null, warnings };
 	}
-	if (m.theta > 0 && lambda / m.theta < 0.8)
+	if (m.theta > 0 && clearlyBelow(lambda, 0.8 * m.theta))
 		warnings.push(`λ/θ = ${fmt(lambda / m.theta)} is below the 0.8 recommended for IMC PID; expect poor robustness.`);
-	if (lambda < 0.2 * m.tau) warnings.push(`λ = ${fmt(lambda)} s is below 0.2·τ = ${fmt(0.2 * m.tau)} s recommended for IMC PID.`);
+	if (clearlyBelow(lambda, 0.2 * m.tau)) warnings.push(`λ = ${fmt(lambda)} s is below 0.2·τ = ${fmt(0.2 * m.tau)} s recommended for IMC PID.`);
 	return { form: 'ideal', ...imcPid(m, lambda), warnings };
 };
+
+/**
+ * a < b beyond rounding (relative 1e-9): a design parameter set exactly at a recommended bound
+ * (the defaults are) must not warn because λ = 0.8·θ came out one ulp low.
+ */
+function clearlyBelow(a: number, b: number): boolean {
+	return a < b * (1 - 1e-9);
+}
 
 /**
  * Skogestad 2003 (SIMC), default τc = θ: FOPDT PI Kc = τ1/(k(τc+θ)), Ti = min(τ1, 4(τc+θ));
@@ -553,7 +561,7 @@ const simc: RuleFn = (ctx) => {
 	const warnings: string[] = [];
 	const closedLoopTime = (theta: number): number => {
 		const tc = parameterOr(ctx, theta, 'τc');
-		if (tc < theta)
+		if (clearlyBelow(tc, theta))
 			warnings.push(`τc = ${fmt(tc)} s is below the minimum recommended τc = θ = ${fmt(theta)} s; robustness drops.`);
 		return tc;
 	};
