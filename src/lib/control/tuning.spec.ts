@@ -408,8 +408,9 @@ describe('time-scale property', () => {
 		// Regression from the property above: FOPDT k = 0.05, τ = 0.1, θ ≈ 0.0617 — λ = 0.8·θ is the
 		// default and the recommended bound of Rivera, Morari & Skogestad (1986) (from memory), so it
 		// must not warn, whatever the time scale.
-		for (const c of [1, 0.37, 3, 7.1, 59.9]) {
-			const r = tune({ plant: { structure: 'fopdt', k: 0.05, tau: 0.1 * c, theta: 0.0617 * c }, rule: 'imc', controller: 'PID' });
+		// θ = 41.080788490848576 is one where (0.8·θ)/θ evaluates to 0.7999999999999999 in IEEE doubles.
+		for (const theta of [0.0617, 41.080788490848576, 47.7188845822377]) {
+			const r = tune({ plant: { structure: 'fopdt', k: 0.05, tau: 0.1, theta }, rule: 'imc', controller: 'PID' });
 			expect(r.warnings.filter((w) => w.includes('0.8 recommended'))).toEqual([]);
 		}
 	});
