@@ -7,6 +7,8 @@
  * so reverse-acting plants (K < 0) get a negative Ku, like the tuning formulas (Kc ∝ 1/K).
  */
 
+import { brentRoot } from './solvers';
+
 /** Ultimate data: ku in controller units (1/plant gain), wu in rad/s, pu = 2π/ωu in seconds. */
 export interface UltimateData {
 	ku: number;
@@ -19,7 +21,8 @@ export type UltimateOutcome = ({ ok: true } & UltimateData) | { ok: false; reaso
 
 /**
  * Root of f on [a, b] where f(a), f(b) have opposite signs (or one is zero), by Brent's method
- * (R. P. Brent, Algorithms for Minimization without Derivatives, Prentice-Hall 1973, ch. 4).
+ * (R. P. Brent, Algorithms for Minimization without Derivatives, Prentice-Hall 1973, ch. 4) —
+ * the engine's one implementation in `solvers.ts`, with a tighter default tolerance.
  * Returns null when the interval does not bracket a sign change. Absolute tolerance `tol` on x.
  */
 export function findBracketedRoot(
@@ -29,68 +32,7 @@ export function findBracketedRoot(
 	tol = 1e-14,
 	maxIter = 200
 ): number | null {
-	let fa = f(a);
-	let fb = f(b);
-	if (!Number.isFinite(fa) || !Number.isFinite(fb)) return null;
-	if (fa === 0) return a;
-	if (fb === 0) return b;
-	if (fa * fb > 0) return null;
-	let c = a;
-	let fc = fa;
-	let d = b - a;
-	let e = d;
-	for (let i = 0; i < maxIter; i++) {
-		if (fb * fc > 0) {
-			c = a;
-			fc = fa;
-			d = b - a;
-			e = d;
-		}
-		if (Math.abs(fc) < Math.abs(fb)) {
-			a = b;
-			b = c;
-			c = a;
-			fa = fb;
-			fb = fc;
-			fc = fa;
-		}
-		const tol1 = 2 * Number.EPSILON * Math.abs(b) + 0.5 * tol;
-		const m = 0.5 * (c - b);
-		if (Math.abs(m) <= tol1 || fb === 0) return b;
-		if (Math.abs(e) >= tol1 && Math.abs(fa) > Math.abs(fb)) {
-			// Inverse quadratic interpolation or secant step.
-			const s = fb / fa;
-			let p: number;
-			let q: number;
-			if (a === c) {
-				p = 2 * m * s;
-				q = 1 - s;
-			} else {
-				const qq = fa / fc;
-				const r = fb / fc;
-				p = s * (2 * m * qq * (qq - r) - (b - a) * (r - 1));
-				q = (qq - 1) * (r - 1) * (s - 1);
-			}
-			if (p > 0) q = -q;
-			else p = -p;
-			if (2 * p < Math.min(3 * m * q - Math.abs(tol1 * q), Math.abs(e * q))) {
-				e = d;
-				d = p / q;
-			} else {
-				d = m;
-				e = d;
-			}
-		} else {
-			d = m;
-			e = d;
-		}
-		a = b;
-		fa = fb;
-		b += Math.abs(d) > tol1 ? d : m > 0 ? tol1 : -tol1;
-		fb = f(b);
-		if (!Number.isFinite(fb)) return null;
-	}
-	return b;
+	return brentRoot(f, a, b, tol, maxIter);
 }
 
 function positive(x: number): boolean {
