@@ -24,8 +24,8 @@ import { parametersForForm, toStoredModel, type StoredParameters } from '../work
 import { compareRevisions, type ComparableRevision, type RevisionComparison } from '../workflow/revision-diff';
 import type { ModelCreateInput, RevisionInput, StructureValue } from '../schemas/revision';
 import { ConflictError, WorkflowConflict, enforce, isoOrNull, step, utcToday, type Acting, type WriteOptions } from './workflow-common';
-import { activeReviewers, enqueueMail, modelLink, recipientById } from './mail/outbox';
-import { approvedMail, changesRequestedMail, reviewRequestedMail } from './mail/templates';
+import { activeReviewers, enqueueMail, modelLink, notifyAuthorOfDecision, recipientById } from './mail/outbox';
+import { reviewRequestedMail } from './mail/templates';
 
 /** The typed errors and options of the workflow writes, re-exported for routes. */
 export { ConflictError, WorkflowConflict, type Acting, type WriteOptions } from './workflow-common';
@@ -657,7 +657,7 @@ export async function submitForReview(
 			after: { state: revision.state, version: Number(revision.version) }
 		});
 		await step(options, 'audit_recorded');
-		const asset = await Asset.findByPk(model.asset_id, { transaction });
+		const facts = await revisionMailFacts(transaction, model, revision);
 		const author = await recipientById(transaction, Number(revision.author_id));
 		const reviewers = await activeReviewers(transaction, [Number(revision.author_id), ...contributors]);
 		for (const r of reviewers) {
@@ -666,20 +666,28 @@ export async function submitForReview(
 				to: { userId: r.id, address: r.email },
 				entity: { type: 'model_revision', id: revisionId },
 				content: reviewRequestedMail({
+					...facts,
 					recipientName: r.name,
-					subject: 'model',
-					modelTitle: model.title,
-					assetTag: asset?.tag ?? '',
-					revisionNo: Number(revision.revision_no),
 					authorName: author?.name ?? acting.user.name,
-					changeSummary: revision.change_summary,
-					link: modelLink(Number(model.id))
+					changeSummary: revision.change_summary
 				})
 			});
 		}
 		await step(options, 'outbox_queued');
 		return { model: await toModelDto(model, transaction), revision: await toRevisionDto(revision, transaction), notified: reviewers.length };
 	});
+}
+
+/** What a notification about a model revision names: model, asset tag, revision number, link. */
+async function revisionMailFacts(transaction: Transaction, model: PlantModel, revision: ModelRevision) {
+	const asset = await Asset.findByPk(model.asset_id, { transaction });
+	return {
+		subject: 'model' as const,
+		modelTitle: model.title,
+		assetTag: asset?.tag ?? '',
+		revisionNo: Number(revision.revision_no),
+		link: modelLink(Number(model.id))
+	};
 }
 
 async function reviewDecision(
@@ -758,26 +766,15 @@ export async function approve(
 			}
 		});
 		await step(options, 'audit_recorded');
-		const author = await recipientById(transaction, Number(revision.author_id));
-		if (author?.active) {
-			const asset = await Asset.findByPk(model.asset_id, { transaction });
-			await enqueueMail(transaction, {
-				kind: 'approved',
-				to: { userId: author.id, address: author.email },
-				entity: { type: 'model_revision', id: revisionId },
-				content: approvedMail({
-					recipientName: author.name,
-					subject: 'model',
-					modelTitle: model.title,
-					assetTag: asset?.tag ?? '',
-					revisionNo: Number(revision.revision_no),
-					authorName: author.name,
-					reviewerName: acting.user.name,
-					comment,
-					link: modelLink(Number(model.id))
-				})
-			});
-		}
+		await notifyAuthorOfDecision(transaction, {
+			decision: 'approved',
+			kind: 'approved',
+			authorId: Number(revision.author_id),
+			entity: { type: 'model_revision', id: revisionId },
+			reviewerName: acting.user.name,
+			comment,
+			facts: () => revisionMailFacts(transaction, model, revision)
+		});
 		await step(options, 'outbox_queued');
 		return { model: await toModelDto(model, transaction), revision: await toRevisionDto(revision, transaction), largeChanges: large };
 	});
@@ -810,26 +807,15 @@ export async function requestChanges(
 			after: { state: 'changes_requested', reviewComment: comment }
 		});
 		await step(options, 'audit_recorded');
-		const author = await recipientById(transaction, Number(revision.author_id));
-		if (author?.active) {
-			const asset = await Asset.findByPk(model.asset_id, { transaction });
-			await enqueueMail(transaction, {
-				kind: 'changes_requested',
-				to: { userId: author.id, address: author.email },
-				entity: { type: 'model_revision', id: revisionId },
-				content: changesRequestedMail({
-					recipientName: author.name,
-					subject: 'model',
-					modelTitle: model.title,
-					assetTag: asset?.tag ?? '',
-					revisionNo: Number(revision.revision_no),
-					authorName: author.name,
-					reviewerName: acting.user.name,
-					comment,
-					link: modelLink(Number(model.id))
-				})
-			});
-		}
+		await notifyAuthorOfDecision(transaction, {
+			decision: 'changes_requested',
+			kind: 'changes_requested',
+			authorId: Number(revision.author_id),
+			entity: { type: 'model_revision', id: revisionId },
+			reviewerName: acting.user.name,
+			comment,
+			facts: () => revisionMailFacts(transaction, model, revision)
+		});
 		await step(options, 'outbox_queued');
 		return { model: await toModelDto(model, transaction), revision: await toRevisionDto(revision, transaction) };
 	});

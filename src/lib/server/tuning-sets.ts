@@ -19,8 +19,8 @@ import { NotFound } from './errors';
 import { decide, TRANSITIONS, type WorkflowState } from '../workflow/state-machine';
 import type { TuningSetInput } from '../schemas/tuning-set';
 import { ConflictError, WorkflowConflict, enforce, isoOrNull, step, type Acting, type WriteOptions } from './workflow-common';
-import { activeReviewers, enqueueMail, modelLink, recipientById } from './mail/outbox';
-import { approvedMail, changesRequestedMail, reviewRequestedMail } from './mail/templates';
+import { activeReviewers, enqueueMail, modelLink, notifyAuthorOfDecision, recipientById } from './mail/outbox';
+import { reviewRequestedMail } from './mail/templates';
 import type { AllowedTransitions, PersonRef } from './revisions';
 
 /** A tuning set in full. Times in seconds; timestamps ISO 8601 UTC. */
@@ -417,15 +417,15 @@ export async function approveTuningSet(
 			after: { state: 'approved', reviewComment: comment, superseded: older.map((o) => Number(o.id)) }
 		});
 		await step(options, 'audit_recorded');
-		const author = await recipientById(transaction, Number(t.author_id));
-		if (author?.active) {
-			await enqueueMail(transaction, {
-				kind: 'tuning_approved',
-				to: { userId: author.id, address: author.email },
-				entity: { type: 'tuning_set', id },
-				content: approvedMail({ ...(await mailFacts(transaction, model, t)), recipientName: author.name, authorName: author.name, reviewerName: acting.user.name, comment })
-			});
-		}
+		await notifyAuthorOfDecision(transaction, {
+			decision: 'approved',
+			kind: 'tuning_approved',
+			authorId: Number(t.author_id),
+			entity: { type: 'tuning_set', id },
+			reviewerName: acting.user.name,
+			comment,
+			facts: () => mailFacts(transaction, model, t)
+		});
 		await step(options, 'outbox_queued');
 		return toDto(t, transaction);
 	});
@@ -452,15 +452,15 @@ export async function requestTuningChanges(acting: Acting, id: number, input: { 
 			after: { state: 'changes_requested', reviewComment: comment }
 		});
 		await step(options, 'audit_recorded');
-		const author = await recipientById(transaction, Number(t.author_id));
-		if (author?.active) {
-			await enqueueMail(transaction, {
-				kind: 'tuning_changes_requested',
-				to: { userId: author.id, address: author.email },
-				entity: { type: 'tuning_set', id },
-				content: changesRequestedMail({ ...(await mailFacts(transaction, model, t)), recipientName: author.name, authorName: author.name, reviewerName: acting.user.name, comment })
-			});
-		}
+		await notifyAuthorOfDecision(transaction, {
+			decision: 'changes_requested',
+			kind: 'tuning_changes_requested',
+			authorId: Number(t.author_id),
+			entity: { type: 'tuning_set', id },
+			reviewerName: acting.user.name,
+			comment,
+			facts: () => mailFacts(transaction, model, t)
+		});
 		await step(options, 'outbox_queued');
 		return toDto(t, transaction);
 	});

@@ -11,7 +11,15 @@ import { initModels } from '../db/models';
 import { MailOutbox } from '../db/models-workflow';
 import { env } from '../env';
 import { recordAudit } from '../audit';
-import { revalidationDigestMail, type DigestItem, type MailContent, type MailKind } from './templates';
+import {
+	approvedMail,
+	changesRequestedMail,
+	revalidationDigestMail,
+	type DigestItem,
+	type MailContent,
+	type MailKind,
+	type ReviewMailFacts
+} from './templates';
 
 /** A message to queue. */
 export interface OutboxMessage {
@@ -99,6 +107,42 @@ export async function recipientById(transaction: Transaction, id: number): Promi
 	);
 	const r = rows[0];
 	return r ? { id: Number(r.id), email: r.email, name: r.name, active: Boolean(Number(r.active)) } : null;
+}
+
+/** What a reviewer decided, as the author is told. */
+export interface AuthorDecisionNotice {
+	decision: 'approved' | 'changes_requested';
+	/** Outbox kind (model revisions and tuning sets have their own). */
+	kind: MailKind;
+	authorId: number;
+	entity: { type: string; id: number };
+	reviewerName: string;
+	comment: string | null;
+	/** The facts of the revision or tuning set; read only when a message is queued. */
+	facts: () => Promise<Omit<ReviewMailFacts, 'recipientName' | 'authorName' | 'reviewerName' | 'comment'>>;
+}
+
+/**
+ * Queue, inside the decision's `transaction`, the mail that tells the author a reviewer approved
+ * their revision or tuning set or sent it back; nothing for a missing or deactivated author.
+ * Model revisions and tuning sets share this one path.
+ */
+export async function notifyAuthorOfDecision(transaction: Transaction, notice: AuthorDecisionNotice): Promise<void> {
+	const author = await recipientById(transaction, notice.authorId);
+	if (!author?.active) return;
+	const facts: ReviewMailFacts = {
+		...(await notice.facts()),
+		recipientName: author.name,
+		authorName: author.name,
+		reviewerName: notice.reviewerName,
+		comment: notice.comment
+	};
+	await enqueueMail(transaction, {
+		kind: notice.kind,
+		to: { userId: author.id, address: author.email },
+		entity: notice.entity,
+		content: notice.decision === 'approved' ? approvedMail(facts) : changesRequestedMail(facts)
+	});
 }
 
 // ── Weekly digest ────────────────────────────────────────────────────────────────────────────
