@@ -158,7 +158,11 @@ function inTimeUnit(structure: string, parameters: Record<string, unknown>, unit
 	return out;
 }
 
-function factsOfPage(r: RevisionDto): RevisionFacts {
+/**
+ * The exported facts of a revision, from either revision DTO (the read model's or the workflow's);
+ * only the data file is looked up differently, so the caller passes it.
+ */
+function revisionFacts(r: RevisionDto | WorkflowRevisionDto, dataFile: RevisionFacts['provenance']['dataFile']): RevisionFacts {
 	const p = r.parameters as Record<string, unknown>;
 	return {
 		id: r.id,
@@ -179,7 +183,7 @@ function factsOfPage(r: RevisionDto): RevisionFacts {
 			method: r.provenance.method,
 			methodName: METHOD_LABELS[r.provenance.method] ?? r.provenance.method,
 			testDate: r.provenance.testDate,
-			dataFile: r.provenance.dataFile,
+			dataFile,
 			fitR2: r.provenance.fitR2,
 			fitRmse: r.provenance.fitRmse,
 			validRange: r.provenance.validRange,
@@ -194,6 +198,10 @@ function factsOfPage(r: RevisionDto): RevisionFacts {
 	};
 }
 
+function factsOfPage(r: RevisionDto): RevisionFacts {
+	return revisionFacts(r, r.provenance.dataFile);
+}
+
 async function dataFileOf(attachmentId: number | null): Promise<RevisionFacts['provenance']['dataFile']> {
 	if (attachmentId === null) return null;
 	const rows = await sequelize().query<Record<string, unknown>>('SELECT filename, size_bytes, media_type FROM attachments WHERE id = :id', {
@@ -205,40 +213,7 @@ async function dataFileOf(attachmentId: number | null): Promise<RevisionFacts['p
 }
 
 async function factsOfWorkflow(r: WorkflowRevisionDto): Promise<RevisionFacts & { version: number }> {
-	const p = r.parameters as Record<string, unknown>;
-	return {
-		id: r.id,
-		no: r.no,
-		state: r.state,
-		structure: r.structure,
-		structureName: structureLabel(r.structure, p as { zeta?: number }),
-		parametersSeconds: finiteParameters(p),
-		parametersInTimeUnit: inTimeUnit(r.structure, p, r.timeUnit),
-		transferFunction: { num: r.num, den: r.den, delaySeconds: r.delaySeconds },
-		gain: r.gain,
-		timeConstantSeconds: r.timeConstantSeconds,
-		timeUnit: r.timeUnit,
-		mv: r.mv,
-		pv: r.pv,
-		operatingPoint: r.operatingPoint,
-		provenance: {
-			method: r.provenance.method,
-			methodName: METHOD_LABELS[r.provenance.method] ?? r.provenance.method,
-			testDate: r.provenance.testDate,
-			dataFile: await dataFileOf(r.provenance.dataAttachmentId),
-			fitR2: r.provenance.fitR2,
-			fitRmse: r.provenance.fitRmse,
-			validRange: r.provenance.validRange,
-			revalidateBy: r.provenance.revalidateBy
-		},
-		changeSummary: r.changeSummary,
-		author: r.author,
-		reviewer: r.reviewer,
-		submittedAt: r.submittedAt,
-		reviewedAt: r.reviewedAt,
-		approvedAt: r.approvedAt,
-		version: r.version
-	};
+	return { ...revisionFacts(r, await dataFileOf(r.provenance.dataAttachmentId)), version: r.version };
 }
 
 const OPEN_STATES = new Set(['draft', 'in_review', 'changes_requested']);
