@@ -145,6 +145,8 @@ export function analyze(request: AnalysisRequest): AnalysisResponse {
 	const plantStructure = recognisePlant(plant);
 	const found: string[] = [];
 	const series = (x: ArrayLike<number>, path: string) => toArray(x, path, found);
+	// Both responses share one time grid: one array serves both (it is never modified).
+	const t = series(sim.t, 'step.t');
 	const response: AnalysisResponse = {
 		closedLoop: {
 			num: a.closedLoop.num,
@@ -157,7 +159,7 @@ export function analyze(request: AnalysisRequest): AnalysisResponse {
 			routh: a.closedLoop.routh,
 			instability: a.closedLoop.instability
 		},
-		step: { t: series(sim.t, 'step.t'), y: series(sim.setpoint.y, 'step.y'), u: series(sim.setpoint.u, 'step.u') },
+		step: { t, y: series(sim.setpoint.y, 'step.y'), u: series(sim.setpoint.u, 'step.u') },
 		stepInfo: { ...a.step, settlingBand: band },
 		margins: {
 			gainMargin: a.margins.gainMargin,
@@ -172,7 +174,7 @@ export function analyze(request: AnalysisRequest): AnalysisResponse {
 			gainCrossings: a.margins.gainCrossings
 		},
 		dominant: a.closedLoop.dominant,
-		disturbance: { t: series(sim.t, 'disturbance.t'), y: series(sim.disturbance.y, 'disturbance.y'), u: series(sim.disturbance.u, 'disturbance.u'), info: a.disturbance },
+		disturbance: { t, y: series(sim.disturbance.y, 'disturbance.y'), u: series(sim.disturbance.u, 'disturbance.u'), info: a.disturbance },
 		bode: a.bode ?? { w: [], magDb: [], phaseDeg: [] },
 		errorConstants: ec,
 		steadyState: ss,

@@ -15,7 +15,7 @@ import { controllerPolynomials } from './controller';
 import { AnalysisInputError } from './errors';
 import { polyAdd, polyDegree, polyMaxAbs, polyMul, polySub, polyTrailingZeros, polyTrim } from './polynomial';
 import { roots, sortRoots } from './roots';
-import { pade } from './transfer-function';
+import { pade, padeZeros } from './transfer-function';
 
 /** θ·|p|max below which a dead time is neglected for closed-loop poles (|p|max: Fujiwara's bound on the delay-free poles). */
 export const NEGLIGIBLE_DELAY = 1e-6;
@@ -271,7 +271,7 @@ export function analyzeClosedLoop(plant: TransferFunction, terms: ControllerTerm
 	// Zeros of ry = nr·ng(·Padé numerator): the union of the factors' roots (cheaper and more
 	// accurate than the roots of the product).
 	const { nr } = controllerPolynomials(terms);
-	const zeros = sortRoots([...roots(nr), ...roots(plant.num), ...(delayed ? roots(pade(plant.delay, padeOrder).num) : [])]);
+	const zeros = sortRoots([...roots(nr), ...roots(plant.num), ...(delayed ? padeZeros(plant.delay, padeOrder) : [])]);
 	const counts = classifyPoles(poles);
 	const routh = routhHurwitz(polys.char);
 	let stable = counts.rhp === 0 && counts.axis === 0;

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import { analysisGrid, bode, frequencyRange, logspace, loopModel, stabilityMargins } from './frequency';
+import { analysisGrid, bode, frequencyRange, logspace, loopLogMagnitude, loopModel, loopModelFromFactors, loopPhase, stabilityMargins } from './frequency';
 import { controllerPolynomials, controllerTerms } from './controller';
 import { polyMul } from './polynomial';
 import { tfEval } from './transfer-function';
@@ -39,6 +39,46 @@ describe('Bode data', () => {
 		const b = bode(m, w);
 		for (let i = 1; i < w.length; i++) expect(Math.abs(b.phaseDeg[i] - b.phaseDeg[i - 1])).toBeLessThan(90);
 		expect(b.phaseDeg[w.length - 1]).toBeCloseTo(-180, 0);
+	});
+});
+
+describe('phase of paired and right-half-plane factors', () => {
+	// Reference: the phase of a product is the sum of the factor phases, each factor jω − r taken on
+	// its continuous branch (common practice; e.g. Franklin, Powell & Emami-Naeini, Feedback Control
+	// of Dynamic Systems, §6.1, from memory). Here summed one factor at a time with atan2, which is
+	// continuous for a root in the left half-plane.
+	const perFactor = (zeros: { re: number; im: number }[], poles: { re: number; im: number }[], w: number) =>
+		zeros.reduce((a, z) => a + Math.atan2(w - z.im, -z.re), 0) - poles.reduce((a, p) => a + Math.atan2(w - p.im, -p.re), 0);
+	it('left-half-plane factors evaluated in pairs give the per-factor sum (random roots, 1e-9)', () => {
+		const root = fc.record({ re: fc.double({ min: -50, max: -1e-3, noNaN: true }), im: fc.double({ min: -50, max: 50, noNaN: true }) });
+		fc.assert(
+			fc.property(fc.array(root, { maxLength: 7 }), fc.array(root, { minLength: 1, maxLength: 8 }), fc.double({ min: 1e-3, max: 1e3, noNaN: true }), (zeros, poles, w) => {
+				const m = loopModelFromFactors(1, zeros, poles);
+				const lowRef = perFactor(zeros, poles, Math.min(...m.corners) * 1e-3);
+				const offset = loopPhase(m, Math.min(...m.corners) * 1e-3) - lowRef;
+				expect(Math.abs(offset / (2 * Math.PI) - Math.round(offset / (2 * Math.PI)))).toBeLessThan(1e-9);
+				expect(loopPhase(m, w) - offset).toBeCloseTo(perFactor(zeros, poles, w), 9);
+			}),
+			{ seed: 20261201, numRuns: 300 }
+		);
+	});
+	it('a complex right-half-plane zero pair: no 360° jump; the numerator of (s² − 0.4s + 4)/(s + 1)³ turns 0 → −180°, the loop ends at −450° (asymptotes, common practice)', () => {
+		const m = loopModel([1, -0.4, 4], [1, 3, 3, 1]);
+		const w = logspace(1e-3, 1e3, 2000);
+		const b = bode(m, w);
+		for (let i = 1; i < w.length; i++) expect(Math.abs(b.phaseDeg[i] - b.phaseDeg[i - 1])).toBeLessThan(10);
+		expect(b.phaseDeg[0]).toBeCloseTo(0, 0);
+		expect(b.phaseDeg[w.length - 1]).toBeCloseTo(-450, 0);
+	});
+	it('log-magnitude from running products matches the sum of logarithms, also for factors far apart in size', () => {
+		const zeros = [{ re: -1e-140, im: 0 }, { re: -1e150, im: 0 }, { re: -3, im: 4 }, { re: -3, im: -4 }];
+		const poles = [{ re: -1e-120, im: 0 }, { re: -1e145, im: 0 }, { re: -2, im: 0 }, { re: -5, im: 1 }, { re: -5, im: -1 }];
+		const m = loopModelFromFactors(2.5, zeros, poles);
+		for (const w of [1e-150, 1e-3, 1, 7, 1e4, 1e149]) {
+			const sum = (rs: typeof zeros) => rs.reduce((a, r) => a + Math.log(Math.hypot(w - r.im, r.re)), 0);
+			const ref = Math.log(2.5) + sum(zeros) - sum(poles);
+			expect(loopLogMagnitude(m, w)).toBeCloseTo(Math.max(-700, Math.min(700, ref)), 9);
+		}
 	});
 });
 

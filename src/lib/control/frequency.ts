@@ -30,6 +30,15 @@ export interface LoopModel {
 	zi: Float64Array;
 	pr: Float64Array;
 	pi: Float64Array;
+	/**
+	 * Factors with a root strictly in the left half-plane, paired for the phase: entry k holds
+	 * (Re r, Im r, sign) of two roots at 6k…6k+5, sign +1 for a zero and −1 for a pole. Each such
+	 * factor jω − r has a phase in (−π/2, π/2), so the sum (or difference) of two lies in (−π, π)
+	 * and one atan2 of their product gives it exactly, with no unwrapping.
+	 */
+	pairs: Float64Array;
+	/** Factors evaluated one by one (roots on the axis or in the right half-plane, and an odd one out): (Re r, Im r, sign). */
+	singles: Float64Array;
 }
 
 /** Factored loop model of num/den·e^(−delay·s) (num, den not zero). */
@@ -66,7 +75,8 @@ export function loopModelFromFactors(gain: number, zeros: Complex[], poles: Comp
 		zr: Float64Array.from(zeros.map((z) => z.re)),
 		zi: Float64Array.from(zeros.map((z) => z.im)),
 		pr: Float64Array.from(poles.map((z) => z.re)),
-		pi: Float64Array.from(poles.map((z) => z.im))
+		pi: Float64Array.from(poles.map((z) => z.im)),
+		...pairFactors(zeros, poles)
 	};
 	const wLow = Math.min(...corners) * 1e-3;
 	const raw = loopPhase(model, wLow);
@@ -75,18 +85,46 @@ export function loopModelFromFactors(gain: number, zeros: Complex[], poles: Comp
 	return model;
 }
 
+/** Splits the factors into left-half-plane pairs and singles (see `LoopModel.pairs`). */
+function pairFactors(zeros: readonly Complex[], poles: readonly Complex[]): { pairs: Float64Array; singles: Float64Array } {
+	const lhp: number[] = [];
+	const single: number[] = [];
+	const add = (r: Complex, sign: number) => (r.re < 0 ? lhp : single).push(r.re, r.im, sign);
+	for (const z of zeros) add(z, 1);
+	for (const p of poles) add(p, -1);
+	const even = lhp.length - (lhp.length % 6);
+	single.push(...lhp.slice(even));
+	return { pairs: Float64Array.from(lhp.slice(0, even)), singles: Float64Array.from(single) };
+}
+
+/** Products of squared factor moduli are folded into a logarithm before they leave this range. */
+const PRODUCT_CAP = 1e150;
+
 /** Natural log of |L(jω)|, clamped to ±700 (a root exactly on the axis gives the clamp). */
 export function loopLogMagnitude(m: LoopModel, w: number): number {
+	// Σ ± ½·log|jω − r|² as logarithms of running products (one log per several factors); a
+	// product is folded into the sum before it could overflow or underflow.
 	let acc = Math.log(Math.abs(m.gain));
+	let num = 1;
+	let den = 1;
 	const { zr, zi, pr, pi } = m;
 	for (let i = 0; i < zr.length; i++) {
 		const a = w - zi[i];
-		acc += 0.5 * Math.log(a * a + zr[i] * zr[i]);
+		const q = a * a + zr[i] * zr[i];
+		if (q > PRODUCT_CAP || q < 1 / PRODUCT_CAP || num > PRODUCT_CAP || num < 1 / PRODUCT_CAP) {
+			acc += 0.5 * Math.log(num);
+			num = q;
+		} else num *= q;
 	}
 	for (let i = 0; i < pr.length; i++) {
 		const a = w - pi[i];
-		acc -= 0.5 * Math.log(a * a + pr[i] * pr[i]);
+		const q = a * a + pr[i] * pr[i];
+		if (q > PRODUCT_CAP || q < 1 / PRODUCT_CAP || den > PRODUCT_CAP || den < 1 / PRODUCT_CAP) {
+			acc -= 0.5 * Math.log(den);
+			den = q;
+		} else den *= q;
 	}
+	acc += 0.5 * (Math.log(num) - Math.log(den));
 	if (!(acc < 700)) return acc > 0 || Number.isNaN(acc) ? 700 : -700;
 	if (!(acc > -700)) return -700;
 	return acc;
@@ -95,9 +133,23 @@ export function loopLogMagnitude(m: LoopModel, w: number): number {
 /** Continuous phase of L(jω) in radians, including −ωθ and the model's 2πk offset. */
 export function loopPhase(m: LoopModel, w: number): number {
 	let acc = m.gain < 0 ? Math.PI : 0;
-	const { zr, zi, pr, pi } = m;
-	for (let i = 0; i < zr.length; i++) acc += Math.atan2(w - zi[i], -zr[i]);
-	for (let i = 0; i < pr.length; i++) acc -= Math.atan2(w - pi[i], -pr[i]);
+	const { pairs, singles } = m;
+	for (let i = 0; i < pairs.length; i += 6) {
+		// (x1 + j·y1)·(x2 + j·y2), the second conjugated when the two signs differ.
+		const x1 = -pairs[i];
+		const y1 = w - pairs[i + 1];
+		const s1 = pairs[i + 2];
+		const x2 = -pairs[i + 3];
+		const y2 = s1 * pairs[i + 5] * (w - pairs[i + 4]);
+		acc += s1 * Math.atan2(x1 * y2 + x2 * y1, x1 * x2 - y1 * y2);
+	}
+	for (let i = 0; i < singles.length; i += 3) {
+		const re = singles[i];
+		// A right-half-plane root: the factor −Re r + j(ω − Im r) crosses the negative real axis at
+		// ω = Im r, where atan2 would jump by 2π; π − atan2(ω − Im r, Re r) is the continuous branch
+		// (equal to atan2 for a real root at ω ≥ 0).
+		acc += singles[i + 2] * (re > 0 ? Math.PI - Math.atan2(w - singles[i + 1], re) : Math.atan2(w - singles[i + 1], -re));
+	}
 	return acc - w * m.delay + m.phaseOffset;
 }
 
@@ -295,10 +347,10 @@ export function findCrossings(m: LoopModel, grid: ArrayLike<number>, values?: Gr
 	const gain: GainCrossing[] = [];
 	const toDb = 20 / Math.LN10;
 	for (let i = 0; i < n - 1; i++) {
-		const a = Math.log(grid[i]);
-		const b = Math.log(grid[i + 1]);
 		// Gain crossover: log|L| changes sign.
 		if ((lm[i] > 0) !== (lm[i + 1] > 0) && lm[i] !== lm[i + 1]) {
+			const a = Math.log(grid[i]);
+			const b = Math.log(grid[i + 1]);
 			const x = newtonBracketed((x) => {
 				const w = Math.exp(x);
 				return [loopLogMagnitude(m, w), loopSlopes(m, w).dLogMag];
@@ -315,6 +367,9 @@ export function findCrossings(m: LoopModel, grid: ArrayLike<number>, values?: Gr
 		const u1 = (ph[i + 1] + Math.PI) / (2 * Math.PI);
 		const lo = Math.min(u0, u1);
 		const hi = Math.max(u0, u1);
+		if (Math.floor(lo) + 1 > Math.floor(hi)) continue;
+		const a = Math.log(grid[i]);
+		const b = Math.log(grid[i + 1]);
 		for (let k = Math.floor(lo) + 1; k <= Math.floor(hi) && phase.length < MAX_PHASE_CROSSINGS; k++) {
 			if (k === lo) continue;
 			const target = 2 * Math.PI * k - Math.PI;
@@ -348,15 +403,19 @@ export function maxSensitivity(
 	phaseCrossovers: readonly number[] = findCrossings(m, grid, values).phase.map((p) => p.w)
 ): { ms: number | null; w: number | null; reason?: string } {
 	const n = grid.length;
+	// |1 + L| with sqrt rather than Math.hypot (much slower): |L| ≤ e^300, so no square overflows.
 	const dist = (w: number) => {
 		const l = loopValue(m, w);
-		return Math.hypot(1 + l.re, l.im);
+		const re = 1 + l.re;
+		return Math.sqrt(re * re + l.im * l.im);
 	};
 	const v = values ?? evaluateLoop(m, grid);
 	const f = new Float64Array(n);
 	for (let i = 0; i < n; i++) {
 		const mag = Math.exp(Math.max(-300, Math.min(300, v.lm[i])));
-		f[i] = Math.hypot(1 + mag * Math.cos(v.ph[i]), mag * Math.sin(v.ph[i]));
+		const re = 1 + mag * Math.cos(v.ph[i]);
+		const im = mag * Math.sin(v.ph[i]);
+		f[i] = Math.sqrt(re * re + im * im);
 	}
 	let best = Infinity;
 	let bestW: number | null = null;

@@ -33,6 +33,22 @@ describe('matrix exponential', () => {
 		expect(Math.abs(e.data[3] / Math.exp(-0.001) - 1)).toBeLessThan(1e-12);
 	});
 
+	it('nilpotent 5×5: e^N = I + N + N²/2 + N³/6 + N⁴/24 exactly (the series ends; common practice), small and large norms', () => {
+		for (const size of [0.05, 0.4, 3]) {
+			const rows = [0, 1, 2, 3, 4].map((i) => [0, 1, 2, 3, 4].map((j) => (j > i ? size * (1 + ((i * 5 + j) % 4)) * (j % 2 ? -1 : 1) : 0)));
+			const n = mat(rows);
+			let term = identity(5);
+			const ref = identity(5).data.slice();
+			for (let k = 1; k <= 4; k++) {
+				term = matMul(term, n);
+				for (let i = 0; i < 25; i++) ref[i] += term.data[i] / [1, 1, 2, 6, 24][k];
+			}
+			const e = expm(n).data;
+			const scale = Math.max(...ref.map(Math.abs));
+			for (let i = 0; i < 25; i++) expect(Math.abs(e[i] - ref[i])).toBeLessThan(1e-13 * scale);
+		}
+	});
+
 	it('e^A·e^(−A) = I for a non-normal 3×3 matrix', () => {
 		const a = mat([[-1, 5, 0], [0, -2, 7], [0.3, 0, -0.5]]);
 		const minus = mat([[1, -5, 0], [0, 2, -7], [-0.3, 0, 0.5]]);

@@ -92,7 +92,8 @@ export function analyzeLoop(plant: TransferFunction, terms: ControllerTerms, opt
 	const finalSp = dcRatio(cl.exact.ry, cl.exact.char);
 	const finalD = dcRatio(cl.exact.dy, cl.exact.char);
 	const refScale = Math.max(1, Math.abs(finalSp ?? 0), Math.abs(finalD ?? 0));
-	const sim = simulateLoop(plant, terms, { tEnd, points, limit: 1e6 * refScale });
+	const plantPoles = roots(plant.den);
+	const sim = simulateLoop(plant, terms, { tEnd, points, limit: 1e6 * refScale, plantPoles });
 	warnings.push(...sim.notes);
 	if (sim.truncatedAt !== null) warnings.push(`The response grows without bound; the time series stop at t = ${sim.truncatedAt.toPrecision(4)} s.`);
 	if (sim.mvImpulse) warnings.push('The MV contains an impulse at the set-point step (ideal derivative on the set-point, c ≠ 0); the sampled MV omits it.');
@@ -135,7 +136,6 @@ export function analyzeLoop(plant: TransferFunction, terms: ControllerTerms, opt
 
 	const { nc, dc } = controllerPolynomials(terms);
 	const plantZeros = roots(plant.num);
-	const plantPoles = roots(plant.den);
 	const model = loopModelFromFactors(
 		(nc[0] * plant.num[0]) / (dc[0] * plant.den[0]),
 		sortRoots([...roots(nc), ...plantZeros]),

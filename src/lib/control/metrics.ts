@@ -191,38 +191,41 @@ function trackingIntegrals(t: ArrayLike<number>, y: ArrayLike<number>, dy: Array
 	let ise = 0;
 	let itae = 0;
 	const n = y.length;
+	if (n < 2) return { iae, ise, itae };
+	// The left end of each interval is carried over from the previous one.
+	let t0 = t[0];
+	let e0 = reference - y[0];
+	let d0 = dy !== null ? -dy[0] : 0;
 	for (let k = 0; k < n - 1; k++) {
-		const t0 = t[k];
 		const t1 = t[k + 1];
-		const h = t1 - t0;
-		const e0 = reference - y[k];
 		const e1 = reference - y[k + 1];
+		const d1 = dy !== null ? -dy[k + 1] : 0;
+		const h = t1 - t0;
 		const sameSign = e0 >= 0 === e1 >= 0 || e0 === 0 || e1 === 0;
 		if (dy !== null && sameSign) {
 			const s = e0 > 0 || e1 > 0 ? 1 : -1;
-			const d0 = -dy[k];
-			const d1 = -dy[k + 1];
 			const c = (h * h) / 12;
 			iae += s * (0.5 * h * (e0 + e1) + c * (d0 - d1));
 			ise += 0.5 * h * (e0 * e0 + e1 * e1) + c * (2 * e0 * d0 - 2 * e1 * d1);
 			itae += s * (0.5 * h * (t0 * e0 + t1 * e1) + c * (e0 + t0 * d0 - e1 - t1 * d1));
-			continue;
-		}
-		ise += (h * (e0 * e0 + e0 * e1 + e1 * e1)) / 3;
-		if (sameSign) {
-			const a0 = Math.abs(e0);
-			const a1 = Math.abs(e1);
-			iae += 0.5 * h * (a0 + a1);
-			itae += (h / 6) * (2 * t0 * a0 + t0 * a1 + t1 * a0 + 2 * t1 * a1);
 		} else {
-			const ts = t0 + (h * e0) / (e0 - e1);
+			ise += (h * (e0 * e0 + e0 * e1 + e1 * e1)) / 3;
 			const a0 = Math.abs(e0);
 			const a1 = Math.abs(e1);
-			const h0 = ts - t0;
-			const h1 = t1 - ts;
-			iae += 0.5 * h0 * a0 + 0.5 * h1 * a1;
-			itae += (h0 / 6) * (2 * t0 * a0 + ts * a0) + (h1 / 6) * (ts * a1 + 2 * t1 * a1);
+			if (sameSign) {
+				iae += 0.5 * h * (a0 + a1);
+				itae += (h / 6) * (2 * t0 * a0 + t0 * a1 + t1 * a0 + 2 * t1 * a1);
+			} else {
+				const ts = t0 + (h * e0) / (e0 - e1);
+				const h0 = ts - t0;
+				const h1 = t1 - ts;
+				iae += 0.5 * h0 * a0 + 0.5 * h1 * a1;
+				itae += (h0 / 6) * (2 * t0 * a0 + ts * a0) + (h1 / 6) * (ts * a1 + 2 * t1 * a1);
+			}
 		}
+		t0 = t1;
+		e0 = e1;
+		d0 = d1;
 	}
 	return { iae, ise, itae };
 }

@@ -24,7 +24,7 @@
  * delay line) and h·|p| ≤ 2 for the fastest plant pole p, at most 64; a dead time below Δ/64 is
  * neglected in the time response (with a note). Without dead time h = Δ (exact at any step).
  */
-import type { TransferFunction } from './types';
+import type { Complex, TransferFunction } from './types';
 import type { ControllerTerms } from './controller';
 import { AnalysisInputError } from './errors';
 import { balance, expm, zeros, type Matrix } from './linalg';
@@ -110,6 +110,8 @@ export interface SimulationOptions {
 	limit?: number;
 	/** Upper bound on internal steps per user step (default 64). */
 	maxSubsteps?: number;
+	/** The plant poles (roots of plant.den), when the caller has them already. */
+	plantPoles?: readonly Complex[];
 }
 
 interface Loop {
@@ -204,7 +206,17 @@ function discretize(
 		for (let c = 0; c < n; c++) bd[r * size + c] = a[r * n + c] * L;
 		for (let j = 0; j < m; j++) bd[r * size + n + j] = cols[j][r] * L;
 	}
-	rampIdx.forEach((j, k) => (bd[(n + j) * size + n + m + k] = 1));
+	// The ramp block holds ε·I instead of I, ε a power of two no larger than ‖[A·L, B·L]‖∞ (a
+	// diagonal similarity: the exponential's ramp columns come out multiplied by ε, divided out
+	// exactly below), so a short step keeps the norm small and the exponential needs no squaring.
+	let normTop = 0;
+	for (let r = 0; r < n; r++) {
+		let sum = 0;
+		for (let c = 0; c < n + m; c++) sum += Math.abs(bd[r * size + c]);
+		normTop = Math.max(normTop, sum);
+	}
+	const eps = normTop > 0 ? Math.pow(2, Math.max(-30, Math.min(0, Math.floor(Math.log2(normTop))))) : 1;
+	rampIdx.forEach((j, k) => (bd[(n + j) * size + n + m + k] = eps));
 	const e = expm(big).data;
 	const phi = new Float64Array(n * n);
 	for (let r = 0; r < n; r++) for (let c = 0; c < n; c++) phi[r * n + c] = e[r * size + c];
@@ -217,7 +229,7 @@ function discretize(
 		g1.push(new Float64Array(n));
 	}
 	rampIdx.forEach((j, k) => {
-		for (let r = 0; r < n; r++) g1[j][r] = e[r * size + n + m + k];
+		for (let r = 0; r < n; r++) g1[j][r] = e[r * size + n + m + k] / eps;
 	});
 	return { phi, g0, g1 };
 }
@@ -275,7 +287,7 @@ export function simulateLoop(plant: TransferFunction, terms: ControllerTerms, op
 		// h ≤ θ (explicit delay line) and h·|p| ≤ 2 for the fastest plant pole p, so the
 		// interpolated delayed PV follows the fastest plant mode.
 		let fastest = 0;
-		for (const p of roots(plant.den)) fastest = Math.max(fastest, Math.hypot(p.re, p.im));
+		for (const p of opts.plantPoles ?? roots(plant.den)) fastest = Math.max(fastest, Math.hypot(p.re, p.im));
 		q = Math.max(1, Math.ceil(dt / theta - 1e-9));
 		if (q <= maxSub) q = Math.min(maxSub, Math.max(q, Math.ceil((dt * fastest) / 2 - 1e-9)));
 		if (q > maxSub) {
@@ -465,6 +477,10 @@ function delayLineSetup(loop: Loop, theta: number, h: number): DelayLine {
 		hrA = matVec(dB.phi, nz, dA.g0[0]);
 		hdA = matVec(dB.phi, nz, dA.g0[2]);
 	}
+	// The controller states are driven by the (delayed) PV and set-point only, never by the plant
+	// state: the exact Φ is block upper triangular. Clear the rounding residue the exponential may
+	// leave in that block, so the time loop can skip it.
+	for (let r = np; r < nz; r++) for (let c = 0; c < np; c++) phi[r * nz + c] = 0;
 	const impulseVec = new Float64Array(nz);
 	if (loop.impulse !== 0) {
 		const raw = new Float64Array(nz);
@@ -508,50 +524,104 @@ function delayLineRun(loop: Loop, dl: DelayLine, setpoint: boolean, n: number, l
 	const { nz, np, f, M, phi, cm1, c0, cp1 } = dl;
 	const { ss, kz, wr, wy, wdy, cpAp, cpBp } = loop;
 	const dp = ss.d;
+	const g = 1 - f;
 	const ideal = wdy !== 0;
+	const stepGain = setpoint ? wr : 1;
 	const constFull = setpoint ? dl.constS : dl.constD;
 	const constFirst = setpoint ? dl.constS0 : dl.constD0;
-	const z = new Float64Array(nz);
-	const t = new Float64Array(nz);
+	let z = new Float64Array(nz);
+	let t = new Float64Array(nz);
 	const cpe = ss.c;
-	for (let k = 0; k < n; k++) {
+	// k < M − 1 (j < −1): nothing has reached the plant yet, the state stays at rest.
+	const quiet = Math.min(n, Math.max(0, M - 1));
+	Y.fill(0, 0, quiet);
+	DY.fill(0, 0, quiet);
+	// Pairs of rows and columns for the Φ·z product, then the odd one.
+	const even = nz & ~1;
+	for (let k = quiet; k < n; k++) {
 		const j = k - M;
-		if (j < -1) {
-			// Nothing has reached the plant yet: the state stays at rest.
-			Y[k] = 0;
-			DY[k] = 0;
-			continue;
-		}
-		const yj1 = j >= 1 ? Y[j - 1] : 0;
-		const yj = j >= 0 ? Y[j] : 0;
-		// Node outputs at t_k (right limits).
-		const stepNow = j >= 1 || (j === 0 && f === 0) ? 1 : 0;
+		// Delayed PV at t_k: f·y(j−1) + (1−f)·y(j) (zero before the first sample). The first two
+		// samples (j = −1, 0) take the guarded reads; from j = 1 on all three samples exist.
+		let yj1: number;
+		let yj: number;
+		let stepNow: number;
 		let dyDel = 0;
-		if (ideal) dyDel = f * (j >= 1 ? DY[j - 1] : 0) + (1 - f) * (j >= 0 ? DY[j] : 0);
-		// Kz acts on the controller states only, Cp and Cp·Ap on the plant states only.
+		let kc: Float64Array | null;
+		if (j >= 1) {
+			yj1 = Y[j - 1];
+			yj = Y[j];
+			stepNow = 1;
+			if (ideal) dyDel = f * DY[j - 1] + g * DY[j];
+			kc = constFull;
+		} else {
+			yj1 = 0;
+			yj = j === 0 ? Y[0] : 0;
+			// The delayed step is 1 from j ≥ 1, or already at j = 0 when θ is on the grid.
+			stepNow = j === 0 && f === 0 ? 1 : 0;
+			if (ideal && j === 0) dyDel = g * DY[0];
+			kc = j === 0 ? constFirst : null;
+		}
+		// Node outputs at t_k (right limits). Kz acts on the controller states only, Cp and Cp·Ap on
+		// the plant states only.
 		let kzz = 0;
 		let cpz = 0;
 		let daz = 0;
 		for (let c = 0; c < np; c++) {
-			cpz += cpe[c] * z[c];
-			daz += cpAp[c] * z[c];
+			const zc = z[c];
+			cpz += cpe[c] * zc;
+			daz += cpAp[c] * zc;
 		}
 		for (let c = np; c < nz; c++) kzz += kz[c] * z[c];
-		const v = kzz + wy * (f * yj1 + (1 - f) * yj) + wdy * dyDel + (setpoint ? wr * stepNow : stepNow);
+		const v = kzz + wy * (f * yj1 + g * yj) + wdy * dyDel + stepGain * stepNow;
 		const yk = cpz + dp * v;
 		Y[k] = yk;
 		DY[k] = dp === 0 ? daz + cpBp * v : 0;
 		if (!(Math.abs(yk) <= limit)) return Math.max(1, k);
 		if (k === n - 1) break;
+		// Next state: Φ·z plus the delayed-PV samples y(j−1), y(j), y(j+1) and the delayed step;
+		// j + 1 ≤ k because M ≥ 1, so y(j+1) is known (with M = 1 it is the sample just computed).
 		const yjp1 = j + 1 >= 0 ? Y[j + 1] : 0;
-		const kc = j >= 1 ? constFull : j === 0 ? constFirst : null;
-		for (let r = 0; r < nz; r++) {
-			let a = cm1[r] * yj1 + c0[r] * yj + cp1[r] * yjp1 + (kc !== null ? kc[r] : 0);
+		// Two rows at a time with two accumulators each: four independent sums per column pair
+		// (several times faster than one running sum per row; the arithmetic is the same).
+		let r = 0;
+		for (; r < even; r += 2) {
 			const o = r * nz;
-			for (let c = 0; c < nz; c++) a += phi[o + c] * z[c];
-			t[r] = a;
+			const p = o + nz;
+			let s0 = cm1[r] * yj1 + c0[r] * yj + cp1[r] * yjp1;
+			let u0 = cm1[r + 1] * yj1 + c0[r + 1] * yj + cp1[r + 1] * yjp1;
+			if (kc !== null) {
+				s0 += kc[r];
+				u0 += kc[r + 1];
+			}
+			let s1 = 0;
+			let u1 = 0;
+			// Controller rows have no plant columns (Φ is block upper triangular).
+			let c = r >= np ? np : 0;
+			for (; c + 1 < nz; c += 2) {
+				const z0 = z[c];
+				const z1 = z[c + 1];
+				s0 += phi[o + c] * z0;
+				s1 += phi[o + c + 1] * z1;
+				u0 += phi[p + c] * z0;
+				u1 += phi[p + c + 1] * z1;
+			}
+			if (c < nz) {
+				s0 += phi[o + c] * z[c];
+				u0 += phi[p + c] * z[c];
+			}
+			t[r] = s0 + s1;
+			t[r + 1] = u0 + u1;
 		}
-		z.set(t);
+		if (r < nz) {
+			const o = r * nz;
+			let s0 = cm1[r] * yj1 + c0[r] * yj + cp1[r] * yjp1;
+			if (kc !== null) s0 += kc[r];
+			for (let c = r >= np ? np : 0; c < nz; c++) s0 += phi[o + c] * z[c];
+			t[r] = s0;
+		}
+		const swap = z;
+		z = t;
+		t = swap;
 	}
 	return n;
 }
@@ -687,31 +757,38 @@ function discretizeController(loop: Loop, h: number): DiscreteController {
 
 /**
  * Controller output u_k = Kc·xc + wr·r + wy·y_k + wdy·ẏ_k at the samples, with the controller
- * states xc (integral, derivative filter) driven by the constant set-point r (from t = 0) and by
- * y linear between samples (exact first-order-hold discretisation).
+ * states xc (integral, derivative filter; at most two) driven by the constant set-point r (from
+ * t = 0) and by y linear between samples (exact first-order-hold discretisation). The states are
+ * held in scalars (padded with zeros to two), which keeps this hot loop free of array traffic.
  */
 function controllerOutput(loop: Loop, d: DiscreteController, y: Float64Array, dy: Float64Array | null, r: number, out: Float64Array, count: number): void {
 	const { wr, wy, wdy } = loop;
 	const { nc, phi, gr, gy0, gy1, kc } = d;
 	const base = wr * r;
-	if (nc === 0) {
-		for (let k = 0; k < count; k++) out[k] = base + wy * y[k] + (dy ? wdy * dy[k] : 0);
-		return;
-	}
-	const xc = new Float64Array(nc);
-	const tmp = new Float64Array(nc);
+	if (nc > 2) throw new Error('controllerOutput: at most two controller states');
+	const at = (v: Float64Array, i: number) => (i < nc ? v[i] : 0);
+	const p00 = nc > 0 ? phi[0] : 0;
+	const p01 = nc > 1 ? phi[1] : 0;
+	const p10 = nc > 1 ? phi[nc] : 0;
+	const p11 = nc > 1 ? phi[nc + 1] : 0;
+	const k0 = at(kc, 0);
+	const k1 = at(kc, 1);
+	const r0 = at(gr, 0) * r;
+	const r1 = at(gr, 1) * r;
+	const a0 = at(gy0, 0);
+	const a1 = at(gy0, 1);
+	const b0 = at(gy1, 0);
+	const b1 = at(gy1, 1);
+	const dGain = dy ? wdy : 0;
+	let x0 = 0;
+	let x1 = 0;
 	for (let k = 0; k < count; k++) {
-		let s = base + wy * y[k] + (dy ? wdy * dy[k] : 0);
-		for (let i = 0; i < nc; i++) s += kc[i] * xc[i];
-		out[k] = s;
+		const yk = y[k];
+		out[k] = base + wy * yk + (dy ? dGain * dy[k] : 0) + k0 * x0 + k1 * x1;
 		if (k === count - 1) break;
-		const y0 = y[k];
-		const dyk = y[k + 1] - y0;
-		for (let i = 0; i < nc; i++) {
-			let v = gr[i] * r + gy0[i] * y0 + gy1[i] * dyk;
-			for (let j = 0; j < nc; j++) v += phi[i * nc + j] * xc[j];
-			tmp[i] = v;
-		}
-		xc.set(tmp);
+		const dyk = y[k + 1] - yk;
+		const n0 = p00 * x0 + p01 * x1 + r0 + a0 * yk + b0 * dyk;
+		x1 = p10 * x0 + p11 * x1 + r1 + a1 * yk + b1 * dyk;
+		x0 = n0;
 	}
 }

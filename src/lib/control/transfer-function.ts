@@ -175,6 +175,24 @@ export function pade(delay: number, order: number): { num: number[]; den: number
 	return { num, den };
 }
 
+/** Roots of the [n/n] Padé numerator of a unit delay, by order (they scale as 1/delay). */
+const unitPadeZeros = new Map<number, Complex[]>();
+
+/**
+ * Zeros of the [order/order] Padé approximant of e^(−delay·s) (the roots of `pade(delay, order).num`,
+ * in the right half-plane): those of the unit-delay approximant divided by the delay, computed
+ * once per order.
+ */
+export function padeZeros(delay: number, order: number): Complex[] {
+	if (delay === 0 || order === 0) return [];
+	let unit = unitPadeZeros.get(order);
+	if (!unit) {
+		unit = roots(pade(1, order).num);
+		unitPadeZeros.set(order, unit);
+	}
+	return unit.map((r) => ({ re: r.re / delay, im: r.im / delay }));
+}
+
 /** Delay-free rational approximation of g: the dead time replaced by its [order/order] Padé approximant. */
 export function tfPade(g: TransferFunction, order: number): TransferFunction {
 	if (g.delay === 0) return { num: g.num.slice(), den: g.den.slice(), delay: 0 };
