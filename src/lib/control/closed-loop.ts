@@ -16,6 +16,7 @@ import { AnalysisInputError } from './errors';
 import { polyAdd, polyDegree, polyMaxAbs, polyMul, polySub, polyTrailingZeros, polyTrim } from './polynomial';
 import { roots, sortRoots } from './roots';
 import { pade, padeZeros } from './transfer-function';
+import { modulus } from './complex';
 
 /** θ·|p|max below which a dead time is neglected for closed-loop poles (|p|max: Fujiwara's bound on the delay-free poles). */
 export const NEGLIGIBLE_DELAY = 1e-6;
@@ -144,7 +145,7 @@ export function dominantPair(poles: readonly Complex[]): DominantPair | null {
 	let best = poles[0];
 	for (const p of poles) if (p.re > best.re || (p.re === best.re && Math.abs(p.im) > Math.abs(best.im))) best = p;
 	if (best.im === 0) return null;
-	const wn = Math.hypot(best.re, best.im);
+	const wn = modulus(best.re, best.im);
 	return { zeta: -best.re / wn, wn, wd: Math.abs(best.im) };
 }
 
@@ -154,7 +155,7 @@ export function classifyPoles(poles: readonly Complex[]): { lhp: number; axis: n
 	let axis = 0;
 	let rhp = 0;
 	for (const p of poles) {
-		const tol = 1e-10 * Math.hypot(p.re, p.im);
+		const tol = 1e-10 * modulus(p.re, p.im);
 		if (p.re < -tol) lhp++;
 		else if (p.re > tol) rhp++;
 		else axis++;

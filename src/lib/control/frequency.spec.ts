@@ -82,6 +82,17 @@ describe('phase of paired and right-half-plane factors', () => {
 	});
 });
 
+describe('automatic frequency band', () => {
+	it('a corner one rounding error off a power of ten gives the band of the exact value (two decades either side)', () => {
+		const band = (r: number) => frequencyRange(loopModelFromFactors(1, [], [{ re: -r, im: 0 }, { re: -2, im: 0 }]));
+		for (const r of [1 - 2 * Number.EPSILON, 1, 1 + 2 * Number.EPSILON]) {
+			const b = band(r);
+			expect(b.wMin).toBeCloseTo(0.01, 15);
+			expect(b.wMax / 1000).toBeCloseTo(1, 12);
+		}
+	});
+});
+
 describe('margins against published and exact values', () => {
 	it('SIMC PI on an FOPDT with τc = θ, τ1 ≤ 8θ: GM = π at π/(2θ), PM = 61.3521° at 1/(2θ), Ms = 1.590490, delay margin 2.141593θ (Skogestad 2003, paper values 3.14, 61.4°, 1.59 from memory; exact [C] values of CONTROL-REFERENCE W5)', () => {
 		const theta = 0.8;

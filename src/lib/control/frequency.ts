@@ -11,6 +11,7 @@ import type { Complex } from './types';
 import { polyTrim } from './polynomial';
 import { roots } from './roots';
 import { brentMinimize, newtonBracketed } from './solvers';
+import { modulus } from './complex';
 
 /** A loop in factored form, ready for fast evaluation on the imaginary axis. */
 export interface LoopModel {
@@ -56,7 +57,7 @@ export function loopModel(num: readonly number[], den: readonly number[], delay 
 export function loopModelFromFactors(gain: number, zeros: Complex[], poles: Complex[], delay = 0): LoopModel {
 	const corners: number[] = [];
 	for (const r of [...zeros, ...poles]) {
-		const m = Math.hypot(r.re, r.im);
+		const m = modulus(r.re, r.im);
 		if (m > 0) corners.push(m);
 	}
 	if (delay > 0) corners.push(1 / delay);
@@ -201,11 +202,15 @@ export interface GridOptions {
 export function frequencyRange(m: LoopModel, opts: GridOptions = {}): { wMin: number; wMax: number } {
 	// Two decades of margin above the highest corner (root corners and the dead-time corner 1/θ).
 	const rootCorners = m.corners.filter((c) => !(m.delay > 0 && c === 1 / m.delay));
+	// Decades are rounded with a 1e-9 tolerance, so a corner one rounding error off a power of ten
+	// (a computed triple root at −0.9999999999999998) gives the same band as the exact value.
+	const decadeUp = (x: number) => Math.ceil(Math.log10(x) - 1e-9);
+	const decadeDown = (x: number) => Math.floor(Math.log10(x) + 1e-9);
 	const top = Math.max(
-		rootCorners.length ? Math.pow(10, Math.ceil(Math.log10(Math.max(...rootCorners))) + 2) : 0,
-		m.delay > 0 ? Math.pow(10, Math.ceil(Math.log10(1 / m.delay)) + 2) : 0
+		rootCorners.length ? Math.pow(10, decadeUp(Math.max(...rootCorners)) + 2) : 0,
+		m.delay > 0 ? Math.pow(10, decadeUp(1 / m.delay) + 2) : 0
 	);
-	let wMin = opts.wMin ?? Math.pow(10, Math.floor(Math.log10(Math.min(...m.corners))) - 2);
+	let wMin = opts.wMin ?? Math.pow(10, decadeDown(Math.min(...m.corners)) - 2);
 	// At most 12 decades (a negligible dead time would otherwise push the band to 1/θ).
 	let wMax = opts.wMax ?? Math.min(top, wMin * 1e12);
 	if (opts.wMax === undefined && m.relativeDegree > 0) {
@@ -238,7 +243,7 @@ export function analysisGrid(m: LoopModel, display: Float64Array): Float64Array 
 	const hi = display[display.length - 1];
 	const consider = (re: number, im: number) => {
 		if (im <= 0) return;
-		const mag = Math.hypot(re, im);
+		const mag = modulus(re, im);
 		if (Math.abs(re) >= 0.3 * mag) return;
 		const step = Math.max(Math.abs(re) / 2, 1e-6 * im);
 		for (let k = -8; k <= 8; k++) {
@@ -427,7 +432,7 @@ export function maxSensitivity(
 	for (let i = 0; i < n; i++) gridMin = Math.min(gridMin, f[i]);
 	const speed = (k: number) => {
 		const sl = loopSlopes(m, grid[k]);
-		return Math.exp(Math.max(-300, Math.min(300, v.lm[k]))) * Math.hypot(sl.dLogMag, sl.dPhase);
+		return Math.exp(Math.max(-300, Math.min(300, v.lm[k]))) * modulus(sl.dLogMag, sl.dPhase);
 	};
 	for (let i = 0; i < n; i++) {
 		const left = i > 0 ? f[i - 1] : Infinity;
@@ -458,7 +463,7 @@ export function maxSensitivity(
 	// closest approach to −1 is then next to a phase crossover, where the distance is ≈ |1 − |L||.
 	for (const wc of phaseCrossovers) {
 		const l = loopValue(m, wc);
-		const atCrossing = Math.hypot(1 + l.re, l.im);
+		const atCrossing = modulus(1 + l.re, l.im);
 		if (!(atCrossing <= 1.2 * best)) continue;
 		const turn = Math.abs(loopSlopes(m, wc).dPhase);
 		const delta = Math.min(0.05, Math.PI / 4 / Math.max(turn, 1e-12));
@@ -475,7 +480,7 @@ export function maxSensitivity(
 	const originRoot = [...m.zeros, ...m.poles].some((r) => r.re === 0 && r.im === 0);
 	if (m.systemType === 0 && !originRoot) {
 		const l0 = loopValue(m, 0);
-		const d0 = Math.hypot(1 + l0.re, l0.im);
+		const d0 = modulus(1 + l0.re, l0.im);
 		if (d0 < best) {
 			best = d0;
 			bestW = 0;

@@ -3,6 +3,7 @@
  * products, LU solves, balancing, the matrix exponential and Hessenberg QR eigenvalues.
  * Sizes here are small (n ≤ ~40), so the plain O(n³) algorithms are the right tools.
  */
+import { modulus } from './complex';
 
 /** A square or rectangular matrix stored row-major: element (i, j) at data[i * cols + j]. */
 export interface Matrix {
@@ -313,7 +314,7 @@ export function hessenbergEigenvalues(h: Matrix, wr: Float64Array, wi: Float64Ar
 		let z = h10 * at(l + 2, l + 1);
 		for (let k = l; k <= nn - 2; k++) {
 			// Householder reflector P = I − 2vvᵀ/vᵀv with v = [x + σ, y, z] zeroing y and z.
-			const alpha = Math.hypot(x, y, z);
+			const alpha = modulus(modulus(x, y), z);
 			if (alpha !== 0) {
 				const sigma = x >= 0 ? alpha : -alpha;
 				const v0 = x + sigma;
@@ -340,7 +341,7 @@ export function hessenbergEigenvalues(h: Matrix, wr: Float64Array, wi: Float64Ar
 			z = k < nn - 2 ? a[(k + 3) * n + k] : 0;
 		}
 		// Final 2-element reflector on rows/columns nn−1, nn.
-		const alpha = Math.hypot(x, y);
+		const alpha = modulus(x, y);
 		if (alpha !== 0) {
 			const k = nn - 1;
 			const sigma = x >= 0 ? alpha : -alpha;

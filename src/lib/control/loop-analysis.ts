@@ -11,6 +11,7 @@ import { controllerPolynomials } from './controller';
 import { roots, sortRoots } from './roots';
 import { disturbanceMetrics, stepMetrics, type DisturbanceMetrics, type StepMetrics } from './metrics';
 import { simulateLoop, type SimulationResult } from './simulation';
+import { modulus } from './complex';
 
 /** Numerical options of one analysis (all optional; defaults documented on each). */
 export interface LoopAnalysisOptions {
@@ -55,7 +56,7 @@ export function defaultEndTime(poles: readonly Complex[], delay: number, stable:
 	let growth = 0;
 	let axisFreq = 0;
 	for (const p of poles) {
-		const mag = Math.hypot(p.re, p.im);
+		const mag = modulus(p.re, p.im);
 		const tol = 1e-10 * mag;
 		if (p.re < -tol) slow = Math.min(slow, -p.re);
 		else if (p.re > tol) growth = Math.max(growth, p.re);
@@ -153,7 +154,7 @@ export function analyzeLoop(plant: TransferFunction, terms: ControllerTerms, opt
 		margins.reasons.ms = 'The closed loop is unstable, so the peak of |S(jω)| is not a robustness measure.';
 		margins.reasons.msFrequency = margins.reasons.ms;
 	}
-	const openRhp = model.poles.filter((p) => p.re > 1e-10 * Math.hypot(p.re, p.im)).length;
+	const openRhp = model.poles.filter((p) => p.re > 1e-10 * modulus(p.re, p.im)).length;
 	if (openRhp > 0) warnings.push(`The open loop has ${openRhp} pole(s) in the right half-plane: gain and phase margins are not a stability test here (use the Nyquist criterion).`);
 	return {
 		closedLoop: cl,

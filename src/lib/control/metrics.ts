@@ -91,11 +91,59 @@ export function firstReach(r: SampledResponse, level: number, sign: number): num
 	return null;
 }
 
-/** Maximum of sign·y with its time, refined between samples. */
-export function extremum(r: SampledResponse, sign: number): { value: number; time: number } {
+/** Indices of the largest and smallest PV sample, of the largest |PV| and of the largest |MV| (first of equals). */
+interface SampleExtremes {
+	max: number;
+	min: number;
+	absMax: number;
+	absMaxU: number;
+}
+
+/** One pass over the samples for `SampleExtremes`. */
+function sampleExtremes(y: ArrayLike<number>, u: ArrayLike<number>): SampleExtremes {
+	let max = 0;
+	let min = 0;
+	let absMax = 0;
+	let yMax = y[0];
+	let yMin = y[0];
+	let yAbs = Math.abs(y[0]);
+	for (let i = 1; i < y.length; i++) {
+		const v = y[i];
+		if (v > yMax) {
+			yMax = v;
+			max = i;
+		}
+		if (v < yMin) {
+			yMin = v;
+			min = i;
+		}
+		const a = Math.abs(v);
+		if (a > yAbs) {
+			yAbs = a;
+			absMax = i;
+		}
+	}
+	let absMaxU = 0;
+	let uAbs = Math.abs(u[0]);
+	for (let i = 1; i < u.length; i++) {
+		const a = Math.abs(u[i]);
+		if (a > uAbs) {
+			uAbs = a;
+			absMaxU = i;
+		}
+	}
+	return { max, min, absMax, absMaxU };
+}
+
+/**
+ * Maximum of sign·y with its time, refined between samples; `at` is the index of the largest
+ * sample of sign·y when already known.
+ */
+export function extremum(r: SampledResponse, sign: number, at?: number): { value: number; time: number } {
 	const n = r.y.length;
 	let k = 0;
-	for (let i = 1; i < n; i++) if (sign * r.y[i] > sign * r.y[k]) k = i;
+	if (at !== undefined) k = at;
+	else for (let i = 1; i < n; i++) if (sign * r.y[i] > sign * r.y[k]) k = i;
 	let bestT = r.t[k];
 	let bestV = r.y[k];
 	if (k > 0 && k < n - 1) {
@@ -256,7 +304,8 @@ export function stepMetrics(
 ): { metrics: StepMetrics; reasons: Record<string, string> } {
 	const reasons: Record<string, string> = {};
 	const { iae, ise, itae } = trackingIntegrals(r.t, r.y, r.dy ?? null, reference);
-	const mv = peakMagnitude(r.t, r.u);
+	const ex = sampleExtremes(r.y, r.u);
+	const mv = { value: r.u[ex.absMaxU], time: r.t[ex.absMaxU] };
 	const metrics: StepMetrics = {
 		riseTime: null,
 		peak: null,
@@ -288,11 +337,11 @@ export function stepMetrics(
 	const t90 = firstReach(r, 0.9 * finalValue, sign);
 	if (t10 !== null && t90 !== null) metrics.riseTime = t90 - t10;
 	else reasons.riseTime = 'The response does not reach 90 % of its final value within the simulated time.';
-	const pk = extremum(r, sign);
+	const pk = extremum(r, sign, sign > 0 ? ex.max : ex.min);
 	metrics.peak = pk.value;
 	metrics.peakTime = pk.time;
 	metrics.overshootPercent = Math.max(0, (100 * (sign * pk.value - abs)) / abs);
-	const low = extremum(r, -sign);
+	const low = extremum(r, -sign, sign > 0 ? ex.min : ex.max);
 	metrics.undershootPercent = Math.max(0, (-100 * sign * low.value) / abs);
 	const ts = lastExit(r, finalValue, band * abs);
 	if (ts === null) reasons.settlingTime = `The response is still outside the ±${(band * 100).toPrecision(3)} % band at the end of the simulated time.`;
@@ -309,11 +358,11 @@ export function disturbanceMetrics(r: SampledResponse, finalValue: number, band:
 	const reasons: Record<string, string> = {};
 	const n = r.y.length;
 	const { iae, ise, itae } = trackingIntegrals(r.t, r.y, r.dy ?? null, 0);
-	let maxK = 0;
-	for (let i = 1; i < n; i++) if (Math.abs(r.y[i]) > Math.abs(r.y[maxK])) maxK = i;
+	const ex = n > 0 ? sampleExtremes(r.y, r.u) : null;
+	const maxK = ex ? ex.absMax : 0;
 	const sign = r.y[maxK] >= 0 ? 1 : -1;
-	const pk = extremum(r, sign);
-	const mv = peakMagnitude(r.t, r.u);
+	const pk = extremum(r, sign, ex ? (sign > 0 ? ex.max : ex.min) : undefined);
+	const mv = ex ? { value: r.u[ex.absMaxU], time: r.t[ex.absMaxU] } : peakMagnitude(r.t, r.u);
 	const dev = Math.abs(pk.value - finalValue);
 	let recovery: number | null = null;
 	if (dev > 0) {

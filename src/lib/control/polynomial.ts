@@ -4,6 +4,7 @@
  * and return new arrays.
  */
 import type { Complex } from './types';
+import { modulus } from './complex';
 
 /** Degree of p after ignoring exact leading zeros; −1 for the zero polynomial. */
 export function polyDegree(p: readonly number[]): number {
@@ -132,7 +133,7 @@ export function polyFromRoots(roots: readonly Complex[]): number[] {
 		let bestDist = Infinity;
 		for (let j = i + 1; j < roots.length; j++) {
 			if (used[j]) continue;
-			const d = Math.hypot(roots[j].re - r.re, roots[j].im + r.im);
+			const d = modulus(roots[j].re - r.re, roots[j].im + r.im);
 			if (d < bestDist) {
 				bestDist = d;
 				best = j;

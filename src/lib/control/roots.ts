@@ -6,6 +6,7 @@
 import type { Complex } from './types';
 import { balance, hessenbergEigenvalues, zeros as matZeros } from './linalg';
 import { polyDerivative, polyTrim } from './polynomial';
+import { modulus } from './complex';
 
 /**
  * All complex roots of the real polynomial p (descending coefficients; exact leading zeros are
@@ -108,7 +109,7 @@ function hornerWithDerivative(p: readonly number[], zr: number, zi: number) {
 	let pi = 0;
 	let dr = 0;
 	let di = 0;
-	const az = Math.hypot(zr, zi);
+	const az = modulus(zr, zi);
 	let bound = Math.abs(p[0]);
 	for (let k = 1; k < p.length; k++) {
 		const ndr = dr * zr - di * zi + pr;
@@ -127,24 +128,24 @@ function polish(p: readonly number[], z: Complex, all: readonly Complex[]): Comp
 	let nearest = Infinity;
 	for (const w of all) {
 		if (w === z) continue;
-		const d = Math.hypot(w.re - z.re, w.im - z.im);
+		const d = modulus(w.re - z.re, w.im - z.im);
 		if (d < nearest) nearest = d;
 	}
 	let zr = z.re;
 	let zi = z.im;
 	let h = hornerWithDerivative(p, zr, zi);
-	let res = Math.hypot(h.pr, h.pi);
+	let res = modulus(h.pr, h.pi);
 	for (let it = 0; it < 6; it++) {
 		if (res <= h.bound) break;
 		const den = h.dr * h.dr + h.di * h.di;
 		if (den === 0) break;
 		const sr = (h.pr * h.dr + h.pi * h.di) / den;
 		const si = (h.pi * h.dr - h.pr * h.di) / den;
-		if (Math.hypot(sr, si) > 0.3 * nearest) break;
+		if (modulus(sr, si) > 0.3 * nearest) break;
 		const nr = zr - sr;
 		const ni = z.im === 0 ? 0 : zi - si;
 		const hn = hornerWithDerivative(p, nr, ni);
-		const resn = Math.hypot(hn.pr, hn.pi);
+		const resn = modulus(hn.pr, hn.pi);
 		if (!(resn < res)) break;
 		zr = nr;
 		zi = ni;
@@ -182,8 +183,8 @@ function recoverMultipleRoots(p: readonly number[], r: Complex[]): Complex[] {
 				const a = stack.pop() as number;
 				for (let j = 0; j < n; j++) {
 					if (final[j] || group[j] >= 0) continue;
-					const scale = Math.max(Math.hypot(out[a].re, out[a].im), Math.hypot(out[j].re, out[j].im));
-					if (Math.hypot(out[a].re - out[j].re, out[a].im - out[j].im) <= rel * scale) {
+					const scale = Math.max(modulus(out[a].re, out[a].im), modulus(out[j].re, out[j].im));
+					if (modulus(out[a].re - out[j].re, out[a].im - out[j].im) <= rel * scale) {
 						group[j] = groups;
 						stack.push(j);
 					}
@@ -217,7 +218,7 @@ function recoverMultipleRoots(p: readonly number[], r: Complex[]): Complex[] {
 			const { c, mult } = accepted;
 			// Replace the `mult` unfinalised roots nearest to c.
 			const order = out
-				.map((z, i) => ({ i, d: Math.hypot(z.re - c.re, z.im - c.im) }))
+				.map((z, i) => ({ i, d: modulus(z.re - c.re, z.im - c.im) }))
 				.filter((e) => !final[e.i])
 				.sort((x, y) => x.d - y.d)
 				.slice(0, mult);
@@ -236,10 +237,10 @@ function vanishesTo(deriv: (k: number) => number[], m: number, c: Complex, len: 
 	for (let k = 0; k < m; k++) {
 		const d = deriv(k);
 		let mag = 0;
-		const az = Math.hypot(c.re, c.im);
+		const az = modulus(c.re, c.im);
 		for (let i = 0; i < d.length; i++) mag = mag * az + Math.abs(d[i]);
 		const h = hornerWithDerivative(d, c.re, c.im);
-		if (Math.hypot(h.pr, h.pi) > 8 * (len + 1) * Number.EPSILON * mag) return false;
+		if (modulus(h.pr, h.pi) > 8 * (len + 1) * Number.EPSILON * mag) return false;
 	}
 	return true;
 }
@@ -248,7 +249,7 @@ function newtonOnDerivative(d: readonly number[], zr: number, zi: number): Compl
 	let res = Infinity;
 	for (let it = 0; it < 40; it++) {
 		const h = hornerWithDerivative(d, zr, zi);
-		const r = Math.hypot(h.pr, h.pi);
+		const r = modulus(h.pr, h.pi);
 		if (r <= h.bound || r === 0) return { re: zr, im: zi };
 		const den = h.dr * h.dr + h.di * h.di;
 		if (den === 0) return null;
@@ -256,7 +257,7 @@ function newtonOnDerivative(d: readonly number[], zr: number, zi: number): Compl
 		const si = (h.pi * h.dr - h.pr * h.di) / den;
 		zr -= sr;
 		zi -= si;
-		if (Math.hypot(sr, si) <= 4 * Number.EPSILON * Math.hypot(zr, zi)) return { re: zr, im: zi };
+		if (modulus(sr, si) <= 4 * Number.EPSILON * modulus(zr, zi)) return { re: zr, im: zi };
 		if (it > 10 && r >= res) return { re: zr, im: zi };
 		res = r;
 	}
@@ -270,7 +271,7 @@ function conjugateSymmetric(r: Complex[]): Complex[] {
 	const out: Complex[] = [];
 	// Roots whose imaginary part is rounding noise become real.
 	const clean = r.map((z) => {
-		const tiny = 16 * Number.EPSILON * Math.hypot(z.re, z.im);
+		const tiny = 16 * Number.EPSILON * modulus(z.re, z.im);
 		return Math.abs(z.im) <= tiny ? { re: z.re, im: 0 } : z;
 	});
 	for (let i = 0; i < n; i++) {
@@ -285,7 +286,7 @@ function conjugateSymmetric(r: Complex[]): Complex[] {
 		let bestDist = Infinity;
 		for (let j = 0; j < n; j++) {
 			if (used[j] || Math.sign(clean[j].im) === Math.sign(z.im) || clean[j].im === 0) continue;
-			const d = Math.hypot(clean[j].re - z.re, clean[j].im + z.im);
+			const d = modulus(clean[j].re - z.re, clean[j].im + z.im);
 			if (d < bestDist) {
 				bestDist = d;
 				best = j;

@@ -30,6 +30,7 @@ import { AnalysisInputError } from './errors';
 import { balance, expm, zeros, type Matrix } from './linalg';
 import { polyTrim } from './polynomial';
 import { roots } from './roots';
+import { modulus } from './complex';
 
 /** Controllable-canonical state-space realisation (A, B, C, D) of a proper num/den, balanced. */
 export interface StateSpace {
@@ -287,7 +288,7 @@ export function simulateLoop(plant: TransferFunction, terms: ControllerTerms, op
 		// h ≤ θ (explicit delay line) and h·|p| ≤ 2 for the fastest plant pole p, so the
 		// interpolated delayed PV follows the fastest plant mode.
 		let fastest = 0;
-		for (const p of opts.plantPoles ?? roots(plant.den)) fastest = Math.max(fastest, Math.hypot(p.re, p.im));
+		for (const p of opts.plantPoles ?? roots(plant.den)) fastest = Math.max(fastest, modulus(p.re, p.im));
 		q = Math.max(1, Math.ceil(dt / theta - 1e-9));
 		if (q <= maxSub) q = Math.min(maxSub, Math.max(q, Math.ceil((dt * fastest) / 2 - 1e-9)));
 		if (q > maxSub) {

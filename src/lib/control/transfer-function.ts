@@ -18,6 +18,7 @@ import {
 	polyTrim
 } from './polynomial';
 import { roots } from './roots';
+import { modulus } from './complex';
 
 /**
  * A validated transfer function: coefficients finite, exact leading zeros trimmed, denominator
@@ -129,13 +130,13 @@ export function tfMinreal(g: TransferFunction, relTol = 1e-8): TransferFunction 
 		let bestDist = Infinity;
 		for (let j = 0; j < p.length; j++) {
 			if (usedP[j]) continue;
-			const dist = Math.hypot(zi.re - p[j].re, zi.im - p[j].im);
+			const dist = modulus(zi.re - p[j].re, zi.im - p[j].im);
 			if (dist < bestDist) {
 				bestDist = dist;
 				best = j;
 			}
 		}
-		if (best >= 0 && bestDist <= relTol * Math.max(1, Math.hypot(p[best].re, p[best].im))) {
+		if (best >= 0 && bestDist <= relTol * Math.max(1, modulus(p[best].re, p[best].im))) {
 			usedP[best] = true;
 			common.push(p[best]);
 		}
