@@ -12,6 +12,7 @@ import { polyTrim } from './polynomial';
 import { roots } from './roots';
 import { brentMinimize, newtonBracketed } from './solvers';
 import { modulus } from './complex';
+import { SLOT, scratch } from './workspace';
 
 /** A loop in factored form, ready for fast evaluation on the imaginary axis. */
 export interface LoopModel {
@@ -40,6 +41,8 @@ export interface LoopModel {
 	pairs: Float64Array;
 	/** Factors evaluated one by one (roots on the axis or in the right half-plane, and an odd one out): (Re r, Im r, sign). */
 	singles: Float64Array;
+	/** Zeros minus poles at the origin: each contributes ±90° for ω > 0 (no atan2 needed). */
+	originCount: number;
 }
 
 /** Factored loop model of num/den·e^(−delay·s) (num, den not zero). */
@@ -87,15 +90,19 @@ export function loopModelFromFactors(gain: number, zeros: Complex[], poles: Comp
 }
 
 /** Splits the factors into left-half-plane pairs and singles (see `LoopModel.pairs`). */
-function pairFactors(zeros: readonly Complex[], poles: readonly Complex[]): { pairs: Float64Array; singles: Float64Array } {
+function pairFactors(zeros: readonly Complex[], poles: readonly Complex[]): { pairs: Float64Array; singles: Float64Array; originCount: number } {
 	const lhp: number[] = [];
 	const single: number[] = [];
-	const add = (r: Complex, sign: number) => (r.re < 0 ? lhp : single).push(r.re, r.im, sign);
+	let originCount = 0;
+	const add = (r: Complex, sign: number) => {
+		if (r.re === 0 && r.im === 0) originCount += sign;
+		else (r.re < 0 ? lhp : single).push(r.re, r.im, sign);
+	};
 	for (const z of zeros) add(z, 1);
 	for (const p of poles) add(p, -1);
 	const even = lhp.length - (lhp.length % 6);
 	single.push(...lhp.slice(even));
-	return { pairs: Float64Array.from(lhp.slice(0, even)), singles: Float64Array.from(single) };
+	return { pairs: Float64Array.from(lhp.slice(0, even)), singles: Float64Array.from(single), originCount };
 }
 
 /** Products of squared factor moduli are folded into a logarithm before they leave this range. */
@@ -125,7 +132,9 @@ export function loopLogMagnitude(m: LoopModel, w: number): number {
 			den = q;
 		} else den *= q;
 	}
-	acc += 0.5 * (Math.log(num) - Math.log(den));
+	// One logarithm of the ratio: where it overflows or underflows, |log| > 709 lies beyond the
+	// ±700 clamp below anyway (and 0/0, two roots on the axis, gives NaN → the clamp, as before).
+	acc += 0.5 * Math.log(num / den);
 	if (!(acc < 700)) return acc > 0 || Number.isNaN(acc) ? 700 : -700;
 	if (!(acc > -700)) return -700;
 	return acc;
@@ -134,7 +143,9 @@ export function loopLogMagnitude(m: LoopModel, w: number): number {
 /** Continuous phase of L(jω) in radians, including −ωθ and the model's 2πk offset. */
 export function loopPhase(m: LoopModel, w: number): number {
 	let acc = m.gain < 0 ? Math.PI : 0;
-	const { pairs, singles } = m;
+	const { pairs, singles, originCount } = m;
+	// A root at the origin: the factor jω has phase 90° for ω > 0 (atan2(ω, −0) otherwise, as for the others).
+	if (originCount !== 0) acc += originCount * (w > 0 ? Math.PI / 2 : Math.atan2(w, -0));
 	for (let i = 0; i < pairs.length; i += 6) {
 		// (x1 + j·y1)·(x2 + j·y2), the second conjugated when the two signs differ.
 		const x1 = -pairs[i];
@@ -415,7 +426,7 @@ export function maxSensitivity(
 		return Math.sqrt(re * re + l.im * l.im);
 	};
 	const v = values ?? evaluateLoop(m, grid);
-	const f = new Float64Array(n);
+	const f = scratch(SLOT.sensitivity, n);
 	for (let i = 0; i < n; i++) {
 		const mag = Math.exp(Math.max(-300, Math.min(300, v.lm[i])));
 		const re = 1 + mag * Math.cos(v.ph[i]);

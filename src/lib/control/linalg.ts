@@ -4,6 +4,7 @@
  * Sizes here are small (n ≤ ~40), so the plain O(n³) algorithms are the right tools.
  */
 import { modulus } from './complex';
+import { SLOT, scratch } from './workspace';
 
 /** A square or rectangular matrix stored row-major: element (i, j) at data[i * cols + j]. */
 export interface Matrix {
@@ -76,7 +77,9 @@ export function normInf(a: Matrix): number {
 export function solve(a: Matrix, b: Matrix): Matrix {
 	const n = a.rows;
 	if (a.cols !== n || b.rows !== n) throw new Error('solve: shape mismatch');
-	const lu = new Float64Array(a.data);
+	// The factors are a temporary (scratch); the solution is a fresh array.
+	const lu = scratch(SLOT.solveLu, n * n);
+	lu.set(a.data.length === n * n ? a.data : a.data.subarray(0, n * n));
 	const x = new Float64Array(b.data);
 	const m = b.cols;
 	let scale = 0;
@@ -155,21 +158,22 @@ export function expm(a: Matrix): Matrix {
 	const s = norm > 0.5 ? Math.max(0, Math.ceil(Math.log2(norm / 0.5))) : 0;
 	const scale = Math.pow(2, -s);
 	const nn = n * n;
-	const x = new Float64Array(nn);
+	// Temporaries in scratch arrays (see workspace.ts); the result is a fresh array.
+	const x = scratch(SLOT.expmX, nn);
 	for (let i = 0; i < nn; i++) x[i] = a.data[i] * scale;
 	// Padé coefficients c_j = (2q − j)! q! / ((2q)! j! (q − j)!) for q = 6.
 	const q = 6;
 	const c = [1];
 	for (let j = 1; j <= q; j++) c.push((c[j - 1] * (q - j + 1)) / (j * (2 * q - j + 1)));
-	const x2 = new Float64Array(nn);
-	const x4 = new Float64Array(nn);
-	const x6 = new Float64Array(nn);
+	const x2 = scratch(SLOT.expmX2, nn);
+	const x4 = scratch(SLOT.expmX4, nn);
+	const x6 = scratch(SLOT.expmX6, nn);
 	mulInto(x, x, x2, n);
 	mulInto(x2, x2, x4, n);
 	mulInto(x4, x2, x6, n);
 	// odd = c1·I + c3·X² + c5·X⁴ (then U = X·odd); V = c0·I + c2·X² + c4·X⁴ + c6·X⁶.
-	const odd = new Float64Array(nn);
-	const v = new Float64Array(nn);
+	const odd = scratch(SLOT.expmOdd, nn);
+	const v = scratch(SLOT.expmEven, nn);
 	for (let i = 0; i < nn; i++) {
 		odd[i] = c[3] * x2[i] + c[5] * x4[i];
 		v[i] = c[2] * x2[i] + c[4] * x4[i] + c[6] * x6[i];
@@ -186,7 +190,8 @@ export function expm(a: Matrix): Matrix {
 		numer[i] = v[i] + u[i];
 		denom[i] = v[i] - u[i];
 	}
-	let e: Float64Array = solve({ rows: n, cols: n, data: denom }, { rows: n, cols: n, data: numer }).data;
+	const result = solve({ rows: n, cols: n, data: denom }, { rows: n, cols: n, data: numer }).data;
+	let e: Float64Array = result;
 	let tmp: Float64Array = odd;
 	for (let k = 0; k < s; k++) {
 		mulInto(e, e, tmp, n);
@@ -194,7 +199,8 @@ export function expm(a: Matrix): Matrix {
 		e = tmp;
 		tmp = t;
 	}
-	return { rows: n, cols: n, data: e };
+	if (e !== result) result.set(e);
+	return { rows: n, cols: n, data: result };
 }
 
 /**

@@ -4,7 +4,8 @@
  * multiple roots from clusters.
  */
 import type { Complex } from './types';
-import { balance, hessenbergEigenvalues, zeros as matZeros } from './linalg';
+import { balance, hessenbergEigenvalues } from './linalg';
+import { SLOT, scratch } from './workspace';
 import { polyDerivative, polyTrim } from './polynomial';
 import { modulus } from './complex';
 
@@ -90,13 +91,15 @@ export function quadraticRoots(a: number, b: number, c: number): Complex[] {
 
 function companionEigenvalues(q: number[]): Complex[] {
 	const n = q.length - 1;
-	const h = matZeros(n, n);
+	const data = scratch(SLOT.companion, n * n);
+	data.fill(0);
+	const h = { rows: n, cols: n, data };
 	const a0 = q[0];
 	for (let j = 0; j < n; j++) h.data[j] = -q[j + 1] / a0;
 	for (let i = 1; i < n; i++) h.data[i * n + i - 1] = 1;
 	balance(h);
-	const wr = new Float64Array(n);
-	const wi = new Float64Array(n);
+	const wr = scratch(SLOT.companionRe, n);
+	const wi = scratch(SLOT.companionIm, n);
 	if (!hessenbergEigenvalues(h, wr, wi)) throw new Error('roots: QR iteration did not converge');
 	const out: Complex[] = [];
 	for (let i = 0; i < n; i++) out.push({ re: wr[i], im: wi[i] });

@@ -27,7 +27,8 @@
 import type { Complex, TransferFunction } from './types';
 import type { ControllerTerms } from './controller';
 import { AnalysisInputError } from './errors';
-import { balance, expm, zeros, type Matrix } from './linalg';
+import { balance, expm, type Matrix } from './linalg';
+import { SLOT, scratch } from './workspace';
 import { polyTrim } from './polynomial';
 import { roots } from './roots';
 import { modulus } from './complex';
@@ -201,8 +202,9 @@ function discretize(
 	ramp.forEach((v, j) => v && rampIdx.push(j));
 	const mr = rampIdx.length;
 	const size = n + m + mr;
-	const big = zeros(size, size);
-	const bd = big.data;
+	const bd = scratch(SLOT.discretizeBlock, size * size);
+	bd.fill(0);
+	const big: Matrix = { rows: size, cols: size, data: bd };
 	for (let r = 0; r < n; r++) {
 		for (let c = 0; c < n; c++) bd[r * size + c] = a[r * n + c] * L;
 		for (let j = 0; j < m; j++) bd[r * size + n + j] = cols[j][r] * L;
@@ -676,10 +678,13 @@ function simulateDelayed(loop: Loop, theta: number, h: number, q: number, points
 	const ideal = loop.wdy !== 0;
 	const dl = delayLineSetup(loop, theta, h);
 	const nFine = (points - 1) * q + 1;
-	const Yd = new Float64Array(nFine);
-	const DYd = new Float64Array(nFine);
-	const Ys = new Float64Array(nFine);
-	let DYs: Float64Array | null = new Float64Array(nFine);
+	// The seven series share one allocation (one backing store instead of seven).
+	const store = new Float64Array(7 * nFine);
+	const part = (i: number) => store.subarray(i * nFine, (i + 1) * nFine);
+	const Yd = part(0);
+	const DYd = part(1);
+	const Ys = part(2);
+	let DYs: Float64Array | null = part(3);
 	let count = delayLineRun(loop, dl, false, nFine, limit, Yd, DYd);
 	if (loop.impulse !== 0) {
 		// Ideal derivative on the set-point: y_r = Cr·y_d would need d²y_d/dt²; simulate it directly.
@@ -695,8 +700,8 @@ function simulateDelayed(loop: Loop, theta: number, h: number, q: number, points
 	}
 	// The MV u = Cr·r − C·y in original time, from the controller states driven by the step r and
 	// the simulated PV (linear between samples, as inside the delay line).
-	const Us = new Float64Array(count);
-	const Ud = new Float64Array(count);
+	const Us = part(4).subarray(0, count);
+	const Ud = part(5).subarray(0, count);
 	const ctrl = discretizeController(loop, h);
 	controllerOutput(loop, ctrl, Ys, ideal ? DYs : null, 1, Us, count);
 	controllerOutput(loop, ctrl, Yd, ideal ? DYd : null, 0, Ud, count);
@@ -707,7 +712,7 @@ function simulateDelayed(loop: Loop, theta: number, h: number, q: number, points
 			break;
 		}
 	}
-	const tFine = new Float64Array(count);
+	const tFine = part(6).subarray(0, count);
 	for (let k = 0; k < count; k++) tFine[k] = k * h;
 	const cut = (x: Float64Array) => (x.length === count ? x : x.slice(0, count));
 	const fine = {
