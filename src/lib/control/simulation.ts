@@ -114,6 +114,8 @@ export interface SimulationOptions {
 	maxSubsteps?: number;
 	/** The plant poles (roots of plant.den), when the caller has them already. */
 	plantPoles?: readonly Complex[];
+	/** Use the indexed delay-line loop even for loops of up to six states (tests compare the two). */
+	genericKernel?: boolean;
 }
 
 interface Loop {
@@ -300,7 +302,7 @@ export function simulateLoop(plant: TransferFunction, terms: ControllerTerms, op
 		}
 	}
 	const h = dt / q;
-	const result = useDelay ? simulateDelayed(loop, theta, h, q, points, limit, terms) : simulateDelayFree(loop, h, points, limit);
+	const result = useDelay ? simulateDelayed(loop, theta, h, q, points, limit, terms, opts.genericKernel) : simulateDelayFree(loop, h, points, limit);
 	result.notes.unshift(...notes);
 	return result;
 }
@@ -629,6 +631,96 @@ function delayLineRun(loop: Loop, dl: DelayLine, setpoint: boolean, n: number, l
 	return n;
 }
 
+/** The first `nz` entries of v in a vector of six (zeros after). */
+function pad6(v: ArrayLike<number>, from: number, to: number): Float64Array {
+	const out = new Float64Array(6);
+	for (let r = from; r < to; r++) out[r] = v[r];
+	return out;
+}
+
+/**
+ * `delayLineRun` for loops of at most six states, with the state, Φ and every coefficient in local
+ * scalars (padded with zeros): no arrays in the step, which V8 runs several times faster than
+ * the indexed loops. Same recursion, same results to rounding.
+ */
+function delayLineRunSmall(loop: Loop, dl: DelayLine, setpoint: boolean, n: number, limit: number, Y: Float64Array, DY: Float64Array): number {
+	const { nz, np, f, M } = dl;
+	const { ss, wr, wy, wdy, cpBp } = loop;
+	if (nz > 6) throw new Error('delayLineRunSmall: at most six states');
+	const dp = ss.d;
+	const g = 1 - f;
+	const ideal = wdy !== 0;
+	const stepGain = setpoint ? wr : 1;
+	// Φ padded to 6×6, the input and output vectors to 6 (zeros outside the loop's size).
+	const P = new Float64Array(36);
+	for (let r = 0; r < nz; r++) for (let c = 0; c < nz; c++) P[r * 6 + c] = dl.phi[r * nz + c];
+	const [cm1, c0, cp1] = [pad6(dl.cm1, 0, nz), pad6(dl.c0, 0, nz), pad6(dl.cp1, 0, nz)];
+	const kcFull = pad6(setpoint ? dl.constS : dl.constD, 0, nz);
+	const kcFirst = pad6(setpoint ? dl.constS0 : dl.constD0, 0, nz);
+	// Output rows: Cp and Cp·Ap on the plant states, Kz on the controller states.
+	const oc = pad6(ss.c, 0, np);
+	const od = pad6(loop.cpAp, 0, np);
+	const ok = pad6(loop.kz, np, nz);
+	const p00 = P[0], p01 = P[1], p02 = P[2], p03 = P[3], p04 = P[4], p05 = P[5];
+	const p10 = P[6], p11 = P[7], p12 = P[8], p13 = P[9], p14 = P[10], p15 = P[11];
+	const p20 = P[12], p21 = P[13], p22 = P[14], p23 = P[15], p24 = P[16], p25 = P[17];
+	const p30 = P[18], p31 = P[19], p32 = P[20], p33 = P[21], p34 = P[22], p35 = P[23];
+	const p40 = P[24], p41 = P[25], p42 = P[26], p43 = P[27], p44 = P[28], p45 = P[29];
+	const p50 = P[30], p51 = P[31], p52 = P[32], p53 = P[33], p54 = P[34], p55 = P[35];
+	const m0 = cm1[0], m1 = cm1[1], m2 = cm1[2], m3 = cm1[3], m4 = cm1[4], m5 = cm1[5];
+	const o0 = c0[0], o1 = c0[1], o2 = c0[2], o3 = c0[3], o4 = c0[4], o5 = c0[5];
+	const q0 = cp1[0], q1 = cp1[1], q2 = cp1[2], q3 = cp1[3], q4 = cp1[4], q5 = cp1[5];
+	const kf0 = kcFull[0], kf1 = kcFull[1], kf2 = kcFull[2], kf3 = kcFull[3], kf4 = kcFull[4], kf5 = kcFull[5];
+	const ki0 = kcFirst[0], ki1 = kcFirst[1], ki2 = kcFirst[2], ki3 = kcFirst[3], ki4 = kcFirst[4], ki5 = kcFirst[5];
+	const oc0 = oc[0], oc1 = oc[1], oc2 = oc[2], oc3 = oc[3], oc4 = oc[4], oc5 = oc[5];
+	const od0 = od[0], od1 = od[1], od2 = od[2], od3 = od[3], od4 = od[4], od5 = od[5];
+	const ok0 = ok[0], ok1 = ok[1], ok2 = ok[2], ok3 = ok[3], ok4 = ok[4], ok5 = ok[5];
+	let z0 = 0, z1 = 0, z2 = 0, z3 = 0, z4 = 0, z5 = 0;
+	const quiet = Math.min(n, Math.max(0, M - 1));
+	Y.fill(0, 0, quiet);
+	DY.fill(0, 0, quiet);
+	for (let k = quiet; k < n; k++) {
+		const j = k - M;
+		let yj1 = 0;
+		let yj = 0;
+		let stepNow = 0;
+		let dyDel = 0;
+		// Weights of the full and the first-sample delayed-step vectors in the next state.
+		let full = 0;
+		let firstW = 0;
+		if (j >= 1) {
+			yj1 = Y[j - 1];
+			yj = Y[j];
+			stepNow = 1;
+			if (ideal) dyDel = f * DY[j - 1] + g * DY[j];
+			full = 1;
+		} else if (j === 0) {
+			yj = Y[0];
+			stepNow = f === 0 ? 1 : 0;
+			if (ideal) dyDel = g * DY[0];
+			firstW = 1;
+		}
+		const cpz = oc0 * z0 + oc1 * z1 + oc2 * z2 + oc3 * z3 + oc4 * z4 + oc5 * z5;
+		const daz = od0 * z0 + od1 * z1 + od2 * z2 + od3 * z3 + od4 * z4 + od5 * z5;
+		const kzz = ok0 * z0 + ok1 * z1 + ok2 * z2 + ok3 * z3 + ok4 * z4 + ok5 * z5;
+		const v = kzz + wy * (f * yj1 + g * yj) + wdy * dyDel + stepGain * stepNow;
+		const yk = cpz + dp * v;
+		Y[k] = yk;
+		DY[k] = dp === 0 ? daz + cpBp * v : 0;
+		if (!(Math.abs(yk) <= limit)) return Math.max(1, k);
+		if (k === n - 1) break;
+		const yjp1 = j + 1 >= 0 ? Y[j + 1] : 0;
+		const t0 = p00 * z0 + p01 * z1 + p02 * z2 + p03 * z3 + p04 * z4 + p05 * z5 + m0 * yj1 + o0 * yj + q0 * yjp1 + full * kf0 + firstW * ki0;
+		const t1 = p10 * z0 + p11 * z1 + p12 * z2 + p13 * z3 + p14 * z4 + p15 * z5 + m1 * yj1 + o1 * yj + q1 * yjp1 + full * kf1 + firstW * ki1;
+		const t2 = p20 * z0 + p21 * z1 + p22 * z2 + p23 * z3 + p24 * z4 + p25 * z5 + m2 * yj1 + o2 * yj + q2 * yjp1 + full * kf2 + firstW * ki2;
+		const t3 = p30 * z0 + p31 * z1 + p32 * z2 + p33 * z3 + p34 * z4 + p35 * z5 + m3 * yj1 + o3 * yj + q3 * yjp1 + full * kf3 + firstW * ki3;
+		const t4 = p40 * z0 + p41 * z1 + p42 * z2 + p43 * z3 + p44 * z4 + p45 * z5 + m4 * yj1 + o4 * yj + q4 * yjp1 + full * kf4 + firstW * ki4;
+		const t5 = p50 * z0 + p51 * z1 + p52 * z2 + p53 * z3 + p54 * z4 + p55 * z5 + m5 * yj1 + o5 * yj + q5 * yjp1 + full * kf5 + firstW * ki5;
+		z0 = t0; z1 = t1; z2 = t2; z3 = t3; z4 = t4; z5 = t5;
+	}
+	return n;
+}
+
 /**
  * Applies the set-point path Cr(s) = b·p + i/s + c·d·s/(1 + Tf·s) to a sampled signal x (linear
  * between samples; exact discretisation), with its derivative when dx is given (null when the
@@ -673,7 +765,7 @@ function setpointPathOf(t: ControllerTerms, h: number, x: Float64Array, dx: Floa
 	return derivOk;
 }
 
-function simulateDelayed(loop: Loop, theta: number, h: number, q: number, points: number, limit: number, terms: ControllerTerms): SimulationResult {
+function simulateDelayed(loop: Loop, theta: number, h: number, q: number, points: number, limit: number, terms: ControllerTerms, genericKernel = false): SimulationResult {
 	const dp = loop.ss.d;
 	const ideal = loop.wdy !== 0;
 	const dl = delayLineSetup(loop, theta, h);
@@ -685,10 +777,11 @@ function simulateDelayed(loop: Loop, theta: number, h: number, q: number, points
 	const DYd = part(1);
 	const Ys = part(2);
 	let DYs: Float64Array | null = part(3);
-	let count = delayLineRun(loop, dl, false, nFine, limit, Yd, DYd);
+	const run = dl.nz <= 6 && !genericKernel ? delayLineRunSmall : delayLineRun;
+	let count = run(loop, dl, false, nFine, limit, Yd, DYd);
 	if (loop.impulse !== 0) {
 		// Ideal derivative on the set-point: y_r = Cr·y_d would need d²y_d/dt²; simulate it directly.
-		count = Math.min(count, delayLineRun(loop, dl, true, nFine, limit, Ys, DYs));
+		count = Math.min(count, run(loop, dl, true, nFine, limit, Ys, DYs));
 	} else if (!setpointPathOf(terms, h, Yd, dp === 0 ? DYd : null, count, Ys, DYs)) DYs = null;
 	let truncatedAt: number | null = count < nFine ? count * h : null;
 	for (let k = 0; k < count; k++) {
