@@ -19,7 +19,7 @@ interface Case {
 		closedLoop: { num: number[]; den: number[]; poles: Complex[]; zeros: Complex[]; stable: boolean };
 		stepInfo?: Record<string, number | null>;
 		disturbance?: Record<string, number | null>;
-		samples?: { t: number[]; y: number[] };
+		samples?: { t: number[]; y: number[]; u: number[] | null; yd: number[]; ud: number[] };
 		margins: Record<string, number | number[] | null>;
 	};
 }
@@ -86,7 +86,7 @@ describe('reference fixtures (SciPy)', () => {
 			expectRootsMatch(r.closedLoop.zeros, c.expected.closedLoop.zeros, 1e-8, 'zeros');
 		});
 
-		it('step and load-disturbance metrics (0.5 %) and the PV trajectory', () => {
+		it('step and load-disturbance metrics (0.5 %) and the PV and MV trajectories of both tests', () => {
 			const r = get(c);
 			const e = c.expected.stepInfo;
 			if (!e) {
@@ -117,15 +117,22 @@ describe('reference fixtures (SciPy)', () => {
 			expectRel(di.peakTime, d.peakTime, 0.005, 'disturbance peakTime');
 			expectRel(di.iae, d.iae, 0.005, 'disturbance iae');
 			if (d.peakMv !== undefined && d.peakMv !== null) expectRel(di.peakMv, d.peakMv, 0.005, 'disturbance peakMv');
-			// PV at 41 probe times, linearly interpolated from the 2000-point response.
-			const samples = c.expected.samples as { t: number[]; y: number[] };
-			const yScale = Math.max(1, ...samples.y.map(Math.abs));
-			samples.t.forEach((t, i) => {
+			// PV and MV of both tests at 41 probe times, linearly interpolated from the 2000-point
+			// responses (the MV of the set-point test is omitted when it has an impulse).
+			const samples = c.expected.samples as { t: number[]; y: number[]; u: number[] | null; yd: number[]; ud: number[] };
+			const at = (series: number[], t: number) => {
 				const k = Math.min(r.step.t.length - 2, Math.floor((t / r.step.t[r.step.t.length - 1]) * (r.step.t.length - 1)));
 				const f = (t - r.step.t[k]) / (r.step.t[k + 1] - r.step.t[k]);
-				const y = r.step.y[k] + f * (r.step.y[k + 1] - r.step.y[k]);
-				expect(Math.abs(y - samples.y[i]), `y(${t})`).toBeLessThanOrEqual(2e-3 * yScale);
-			});
+				return series[k] + f * (series[k + 1] - series[k]);
+			};
+			const probe = (name: string, ours: number[], ref: number[]) => {
+				const scale = Math.max(1, ...ref.map(Math.abs));
+				samples.t.forEach((t, i) => expect(Math.abs(at(ours, t) - ref[i]), `${name}(${t})`).toBeLessThanOrEqual(2e-3 * scale));
+			};
+			probe('y', r.step.y, samples.y);
+			if (samples.u) probe('u', r.step.u, samples.u);
+			probe('load y', r.disturbance.y, samples.yd);
+			probe('load u', r.disturbance.u, samples.ud);
 		});
 
 		it('gain and phase margins, crossovers, delay margin, Ms (1e-4 relative)', () => {

@@ -1,7 +1,7 @@
 #!/usr/bin/python3
 """Reference fixtures for the Loopledger analysis engine, computed independently with SciPy.
 
-How to regenerate (Debian: ``apt-get install python3-scipy``; written for SciPy 1.10 / NumPy 1.24)::
+How to regenerate (Debian: ``apt-get install python3-scipy``; written for SciPy 1.10 / NumPy 1.24, last run with the versions in the fixture's meta)::
 
     /usr/bin/python3 tests/reference/generate_analysis_fixtures.py
 
@@ -20,7 +20,7 @@ What is computed here, and how (independently of the TypeScript code):
   dead time with a fine-step simulation written here: plant and controller discretised with
   scipy.signal.cont2discrete (first-order hold), the controller output passed through a delay
   line of M samples (step h = theta/M, about tEnd/200 000);
-* metrics by linear interpolation on that dense grid (rise 10-90 %, peak, overshoot,
+* PV and MV of both tests at 41 probe times, and metrics, by linear interpolation on that dense grid (rise 10-90 %, peak, overshoot,
   undershoot, settling time as the last exit from the +-band tube, IAE/ISE/ITAE by the
   trapezoidal rule, peak MV);
 * gain/phase crossings bracketed on a 40 000-point log grid and refined with
@@ -512,7 +512,14 @@ def main():
             td, yd, ud = res['disturbance']
             expected['disturbance'] = disturbance_metrics(td, yd, ud, dfinal)
             probe = np.linspace(0, t_end, 41)
-            expected['samples'] = {'t': list(probe), 'y': list(np.interp(probe, t, y))}
+            expected['samples'] = {
+                't': list(probe),
+                'y': list(np.interp(probe, t, y)),
+                # MV of the set-point test (omitted with an impulse), PV and MV of the load test.
+                'u': None if ideal_impulse else list(np.interp(probe, t, u)),
+                'yd': list(np.interp(probe, td, yd)),
+                'ud': list(np.interp(probe, td, ud)),
+            }
         expected['margins'] = margins(cl)
         case['expected'] = expected
         cases.append(case)

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import { analyze, type AnalysisRequest } from './analyze';
+import { analyze, sanitize, type AnalysisRequest } from './analyze';
 import { defaultEndTime } from './loop-analysis';
 import { AnalysisInputError } from './errors';
 
@@ -161,5 +161,21 @@ describe('analyze: properties', () => {
 			}),
 			{ numRuns: 30, seed: 29 }
 		);
+	});
+});
+
+describe('the response safety net', () => {
+	it('replaces a non-finite number anywhere by null, names its path in reasons and warns once', () => {
+		const r = analyze({ plant: { num: [1], den: [2, 1] }, controller: { type: 'PI', kp: 1, ti: 2 }, options: { points: 50, bodePoints: 20 } });
+		expect(r.warnings.some((w) => w.startsWith('Internal'))).toBe(false);
+		r.margins.gainMargin = Number.POSITIVE_INFINITY;
+		r.closedLoop.poles[0].im = Number.NaN;
+		r.bode.magDb[3] = Number.NEGATIVE_INFINITY;
+		sanitize(r);
+		expect(r.margins.gainMargin).toBeNull();
+		expect(r.closedLoop.poles[0].im).toBeNull();
+		expect(r.bode.magDb[3]).toBeNull();
+		expect(Object.keys(r.reasons).filter((k) => r.reasons[k].startsWith('not finite')).sort()).toEqual(['bode.magDb[3]', 'closedLoop.poles[0].im', 'margins.gainMargin']);
+		expect(r.warnings.filter((w) => w.startsWith('Internal'))).toEqual(['Internal: 3 non-finite value(s) replaced by null (first at closedLoop.poles[0].im).']);
 	});
 });

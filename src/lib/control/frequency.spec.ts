@@ -82,6 +82,19 @@ describe('phase of paired and right-half-plane factors', () => {
 	});
 });
 
+describe('log-spaced grid', () => {
+	it('equals exp(a + (b − a)·i/(n − 1)) to 1e-13 (an ulp of an exponent near ±20 is already 1e-15 relative) and hits both ends (the definition; common practice)', () => {
+		for (const [lo, hi, n] of [[1e-3, 1e4, 400], [0.5, 2, 7], [1e-9, 1e9, 1001]] as const) {
+			const w = logspace(lo, hi, n);
+			const a = Math.log(lo);
+			const b = Math.log(hi);
+			for (let i = 0; i < n; i++) expect(Math.abs(w[i] / Math.exp(a + ((b - a) * i) / (n - 1)) - 1)).toBeLessThan(1e-13);
+			expect(w[0] / lo).toBeCloseTo(1, 14);
+			expect(w[n - 1] / hi).toBeCloseTo(1, 13);
+		}
+	});
+});
+
 describe('automatic frequency band', () => {
 	it('a corner one rounding error off a power of ten gives the band of the exact value (two decades either side)', () => {
 		const band = (r: number) => frequencyRange(loopModelFromFactors(1, [], [{ re: -r, im: 0 }, { re: -2, im: 0 }]));

@@ -239,7 +239,11 @@ export function logspace(wMin: number, wMax: number, points: number): Float64Arr
 	const out = new Float64Array(points);
 	const a = Math.log(wMin);
 	const b = Math.log(wMax);
-	for (let i = 0; i < points; i++) out[i] = Math.exp(a + ((b - a) * i) / Math.max(1, points - 1));
+	const step = (b - a) / Math.max(1, points - 1);
+	// Successive points by the constant ratio, re-anchored by an exponential every 16 points (a
+	// few ulp of drift at most, and a sixteenth of the exponentials).
+	const ratio = Math.exp(step);
+	for (let i = 0; i < points; i++) out[i] = i % 16 === 0 ? Math.exp(a + step * i) : out[i - 1] * ratio;
 	return out;
 }
 
@@ -428,10 +432,11 @@ export function maxSensitivity(
 	const v = values ?? evaluateLoop(m, grid);
 	const f = scratch(SLOT.sensitivity, n);
 	for (let i = 0; i < n; i++) {
+		// |1 + L|² = 1 + 2|L|·cos∠L + |L|²: one cosine and no sine. Near −1 this loses digits to
+		// cancellation (about √ε absolute in |1 + L|), harmless here: the grid values only pick
+		// the candidates, which the minimiser then refines with the exact distance.
 		const mag = Math.exp(Math.max(-300, Math.min(300, v.lm[i])));
-		const re = 1 + mag * Math.cos(v.ph[i]);
-		const im = mag * Math.sin(v.ph[i]);
-		f[i] = Math.sqrt(re * re + im * im);
+		f[i] = Math.sqrt(Math.max(0, 1 + mag * (2 * Math.cos(v.ph[i]) + mag)));
 	}
 	let best = Infinity;
 	let bestW: number | null = null;
@@ -456,7 +461,8 @@ export function maxSensitivity(
 		}
 		{
 			let w = grid[i];
-			let v = f[i];
+			// The exact distance at the sample (the scan value above may have lost digits near −1).
+			let v = dist(grid[i]);
 			if (i > 0 && i < n - 1) {
 				const r = brentMinimize((x) => dist(Math.exp(x)), Math.log(grid[i - 1]), Math.log(grid[i + 1]));
 				if (r.fx < v) {

@@ -839,19 +839,40 @@ interface DiscreteController {
 function discretizeController(loop: Loop, h: number): DiscreteController {
 	const { nz, np } = loop;
 	const nc = nz - np;
-	const ac = new Float64Array(nc * nc);
-	const br = new Float64Array(nc);
-	const by = new Float64Array(nc);
+	const phi = new Float64Array(nc * nc);
+	const gr = new Float64Array(nc);
+	const gy0 = new Float64Array(nc);
+	const gy1 = new Float64Array(nc);
 	const kc = new Float64Array(nc);
+	for (let i = 0; i < nc; i++)
+		for (let j = 0; j < nc; j++)
+			if (i !== j && loop.a[(np + i) * nz + np + j] !== 0) throw new Error('discretizeController: coupled controller states');
+	// The controller states (integral, derivative filter) are decoupled scalars ẋ = a·x + b_r·r + b_y·y
+	// (a = 0 or −1/Tf): their exact discretisation with y linear on the step is closed-form,
+	// x1 = e^(ah)·x0 + (e^(ah) − 1)/a·(b_r·r + b_y·y0) + (e^(ah) − 1 − ah)/(a²h)·b_y·(y1 − y0)
+	// (Van Loan 1978 for a scalar; the limits h and h/2 at a = 0, a series for small |ah|).
 	for (let i = 0; i < nc; i++) {
-		for (let j = 0; j < nc; j++) ac[i * nc + j] = loop.a[(np + i) * nz + np + j];
-		br[i] = loop.br[np + i];
-		by[i] = loop.by[np + i];
+		const a = loop.a[(np + i) * nz + np + i];
+		const br = loop.br[np + i];
+		const by = loop.by[np + i];
+		const x = a * h;
+		let e0: number; // (e^(ah) − 1)/a
+		let e1: number; // (e^(ah) − 1 − ah)/(a²h)
+		if (Math.abs(x) < 1e-3) {
+			e0 = h * (1 + x / 2 + (x * x) / 6 + (x * x * x) / 24);
+			e1 = h * (0.5 + x / 6 + (x * x) / 24 + (x * x * x) / 120);
+		} else {
+			const em1 = Math.expm1(x);
+			e0 = em1 / a;
+			e1 = (em1 - x) / (a * x);
+		}
+		phi[i * nc + i] = 1 + x * (e0 / h);
+		gr[i] = e0 * br;
+		gy0[i] = e0 * by;
+		gy1[i] = e1 * by;
 		kc[i] = loop.kz[np + i];
 	}
-	if (nc === 0) return { nc, phi: ac, gr: br, gy0: by, gy1: by, kc };
-	const d = discretize(ac, nc, [br, by], h, [false, true]);
-	return { nc, phi: d.phi, gr: d.g0[0], gy0: d.g0[1], gy1: d.g1[1], kc };
+	return { nc, phi, gr, gy0, gy1, kc };
 }
 
 /**
