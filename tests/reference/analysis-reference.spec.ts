@@ -120,12 +120,12 @@ describe('reference fixtures (SciPy)', () => {
 			// PV and MV of both tests at 41 probe times, linearly interpolated from the 2000-point
 			// responses (the MV of the set-point test is omitted when it has an impulse).
 			const samples = c.expected.samples as { t: number[]; y: number[]; u: number[] | null; yd: number[]; ud: number[] };
-			const at = (series: number[], t: number) => {
+			const at = (series: ArrayLike<number>, t: number) => {
 				const k = Math.min(r.step.t.length - 2, Math.floor((t / r.step.t[r.step.t.length - 1]) * (r.step.t.length - 1)));
 				const f = (t - r.step.t[k]) / (r.step.t[k + 1] - r.step.t[k]);
 				return series[k] + f * (series[k + 1] - series[k]);
 			};
-			const probe = (name: string, ours: number[], ref: number[]) => {
+			const probe = (name: string, ours: ArrayLike<number>, ref: number[]) => {
 				const scale = Math.max(1, ...ref.map(Math.abs));
 				samples.t.forEach((t, i) => expect(Math.abs(at(ours, t) - ref[i]), `${name}(${t})`).toBeLessThanOrEqual(2e-3 * scale));
 			};

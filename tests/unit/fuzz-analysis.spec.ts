@@ -25,6 +25,7 @@ function nonFinitePaths(v: unknown, path = '', out: string[] = []): string[] {
 	if (typeof v === 'number') {
 		if (!Number.isFinite(v)) out.push(path);
 	} else if (Array.isArray(v)) v.forEach((x, i) => nonFinitePaths(x, `${path}[${i}]`, out));
+	else if (v instanceof Float64Array) v.forEach((x, i) => Number.isFinite(x) || out.push(`${path}[${i}]`));
 	else if (v && typeof v === 'object') for (const [k, x] of Object.entries(v)) nonFinitePaths(x, `${path}.${k}`, out);
 	return out;
 }

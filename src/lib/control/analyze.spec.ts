@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import { analyze, sanitize, type AnalysisRequest } from './analyze';
+import { analysisToJson, analyze, sanitize, type AnalysisRequest } from './analyze';
 import { defaultEndTime } from './loop-analysis';
 import { AnalysisInputError } from './errors';
 
@@ -33,13 +33,17 @@ describe('analyze: the contract of PRODUCT.md', () => {
 		expect(allFinite(r)).toEqual([]);
 	});
 
-	it('is JSON-safe: no NaN or Infinity, nulls carry reasons', () => {
+	it('is JSON-safe through analysisToJson: no NaN or Infinity, nulls carry reasons, the series as plain arrays', () => {
 		const r = analyze({ plant: { num: [2], den: [1, 0] }, controller: { type: 'P', kp: 1 } });
 		expect(r.margins.gainMargin).toBeNull();
 		expect(r.reasons['margins.gainMargin']).toMatch(/no phase crossover/);
 		expect(r.errorConstants.kp).toBeNull();
 		expect(r.reasons['errorConstants.kp']).toMatch(/type/);
-		expect(JSON.parse(JSON.stringify(r))).toEqual(r);
+		const j = analysisToJson(r);
+		expect(JSON.parse(JSON.stringify(j))).toEqual(j);
+		expect(Array.isArray(j.step.y) && Array.isArray(j.disturbance.u)).toBe(true);
+		expect(j.step.y).toEqual(Array.from(r.step.y));
+		expect(j.disturbance.t).toEqual(Array.from(r.disturbance.t));
 	});
 
 	it('unstable loops: stable false, metrics null with the reason, never NaN', () => {
@@ -176,6 +180,6 @@ describe('the response safety net', () => {
 		expect(r.closedLoop.poles[0].im).toBeNull();
 		expect(r.bode.magDb[3]).toBeNull();
 		expect(Object.keys(r.reasons).filter((k) => r.reasons[k].startsWith('not finite')).sort()).toEqual(['bode.magDb[3]', 'closedLoop.poles[0].im', 'margins.gainMargin']);
-		expect(r.warnings.filter((w) => w.startsWith('Internal'))).toEqual(['Internal: 3 non-finite value(s) replaced by null (first at closedLoop.poles[0].im).']);
+		expect(r.warnings.filter((w) => w.startsWith('Internal'))).toEqual(['Internal: 3 non-finite value(s) replaced by null or cut off (first at closedLoop.poles[0].im).']);
 	});
 });

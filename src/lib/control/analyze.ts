@@ -44,7 +44,8 @@ export interface AnalysisResponse {
 		routh: { rhpCount: number; zeroRow: boolean; agrees: boolean };
 		instability: string | null;
 	};
-	step: { t: number[]; y: number[]; u: number[] };
+	/** Set-point test: time (s), PV, MV as Float64Array of finite samples (plain arrays in `analysisToJson`). */
+	step: ResponseSeries;
 	stepInfo: {
 		riseTime: number | null;
 		peak: number | null;
@@ -74,7 +75,8 @@ export interface AnalysisResponse {
 		gainCrossings: GainCrossing[];
 	};
 	dominant: { zeta: number; wn: number; wd: number } | null;
-	disturbance: { t: number[]; y: number[]; u: number[]; info: DisturbanceMetrics };
+	/** Load test (unit step at the plant input): time, PV, MV as for `step`, and its metrics. */
+	disturbance: ResponseSeries & { info: DisturbanceMetrics };
 	bode: { w: number[]; magDb: number[]; phaseDeg: number[] };
 	errorConstants: { systemType: number; kp: number | null; kv: number | null; ka: number | null };
 	steadyState: { step: number | null; ramp: number | null; parabola: number | null };
@@ -86,23 +88,55 @@ export interface AnalysisResponse {
 	reasons: Record<string, string>;
 }
 
-/** Series already converted and checked for finiteness (the final sanitiser skips them). */
-const checked = new WeakSet<object>();
-/** Copies a typed array into a plain array, replacing non-finite values by null (recorded). */
-function toArray(a: ArrayLike<number>, path: string, found: string[]): number[] {
-	// Pre-filled with a non-integer so V8 allocates unboxed double storage once (an empty
-	// `new Array(n)` is converted when the first double arrives: twice the time).
-	const out = new Array<number>(a.length).fill(0.5);
-	for (let i = 0; i < a.length; i++) {
-		const v = a[i];
-		if (Number.isFinite(v)) out[i] = v;
-		else {
-			found.push(`${path}[${i}]`);
-			out[i] = null as unknown as number;
-		}
-	}
-	checked.add(out);
+/** The time series of one test: time (s), PV, MV; equal lengths, finite samples. */
+export interface ResponseSeries {
+	t: Float64Array;
+	y: Float64Array;
+	u: Float64Array;
+}
+
+/** The response with its series as plain arrays: the JSON form of the API. */
+export type AnalysisJson = Omit<AnalysisResponse, 'step' | 'disturbance'> & {
+	step: { t: number[]; y: number[]; u: number[] };
+	disturbance: { t: number[]; y: number[]; u: number[]; info: DisturbanceMetrics };
+};
+
+function plain(a: Float64Array): number[] {
+	const out = new Array<number>(a.length);
+	for (let i = 0; i < a.length; i++) out[i] = a[i];
 	return out;
+}
+
+/**
+ * The response as plain JSON data (`analyze` keeps its series in Float64Array: no copies on the
+ * hot path, cheap to post to a worker; JSON.stringify needs arrays).
+ */
+export function analysisToJson(r: AnalysisResponse): AnalysisJson {
+	const t = plain(r.step.t);
+	const dt = r.disturbance.t === r.step.t ? t : plain(r.disturbance.t);
+	return {
+		...r,
+		step: { t, y: plain(r.step.y), u: plain(r.step.u) },
+		disturbance: { t: dt, y: plain(r.disturbance.y), u: plain(r.disturbance.u), info: r.disturbance.info }
+	};
+}
+
+/**
+ * The series of one test, checked: every sample finite (the simulation cuts a diverging response
+ * before it overflows). Should a non-finite sample ever appear, the three series are cut before
+ * it and the cut is recorded (a safety net like `sanitize`).
+ */
+function checkedSeries(t: Float64Array, y: Float64Array, u: Float64Array, name: string, found: string[]): ResponseSeries {
+	const n = t.length;
+	for (let i = 0; i < n; i++) {
+		const a = y[i];
+		const b = u[i];
+		const c = t[i];
+		if (a - a === 0 && b - b === 0 && c - c === 0) continue;
+		found.push(`${name}[${i}]`);
+		return { t: t.subarray(0, i), y: y.subarray(0, i), u: u.subarray(0, i) };
+	}
+	return { t, y, u };
 }
 
 /**
@@ -146,9 +180,9 @@ export function analyze(request: AnalysisRequest): AnalysisResponse {
 	const sim = a.simulation;
 	const plantStructure = recognisePlant(plant);
 	const found: string[] = [];
-	const series = (x: ArrayLike<number>, path: string) => toArray(x, path, found);
-	// Both responses share one time grid: one array serves both (it is never modified).
-	const t = series(sim.t, 'step.t');
+	// Both responses share one time grid (one array, never modified).
+	const step = checkedSeries(sim.t, sim.setpoint.y, sim.setpoint.u, 'step', found);
+	const load = checkedSeries(sim.t, sim.disturbance.y, sim.disturbance.u, 'disturbance', found);
 	const response: AnalysisResponse = {
 		closedLoop: {
 			num: a.closedLoop.num,
@@ -161,7 +195,7 @@ export function analyze(request: AnalysisRequest): AnalysisResponse {
 			routh: a.closedLoop.routh,
 			instability: a.closedLoop.instability
 		},
-		step: { t, y: series(sim.setpoint.y, 'step.y'), u: series(sim.setpoint.u, 'step.u') },
+		step,
 		stepInfo: { ...a.step, settlingBand: band },
 		margins: {
 			gainMargin: a.margins.gainMargin,
@@ -176,7 +210,7 @@ export function analyze(request: AnalysisRequest): AnalysisResponse {
 			gainCrossings: a.margins.gainCrossings
 		},
 		dominant: a.closedLoop.dominant,
-		disturbance: { t, y: series(sim.disturbance.y, 'disturbance.y'), u: series(sim.disturbance.u, 'disturbance.u'), info: a.disturbance },
+		disturbance: { ...load, info: a.disturbance },
 		bode: a.bode ?? { w: [], magDb: [], phaseDeg: [] },
 		errorConstants: ec,
 		steadyState: ss,
@@ -206,7 +240,7 @@ export function analyze(request: AnalysisRequest): AnalysisResponse {
 
 /**
  * Replaces any non-finite number left anywhere in the response by null and records it, with
- * those already found in the time series (a safety net: the engine is meant never to produce one;
+ * the cuts already made in the time series (a safety net: the engine is meant never to produce one;
  * the fuzz test checks that this note never appears).
  */
 export function sanitize(r: AnalysisResponse, found: string[] = []): AnalysisResponse {
@@ -218,8 +252,9 @@ export function sanitize(r: AnalysisResponse, found: string[] = []): AnalysisRes
 		return p;
 	};
 	const walk = (v: object): void => {
+		// The time series were checked when they were taken (`checkedSeries`).
+		if (ArrayBuffer.isView(v)) return;
 		if (Array.isArray(v)) {
-			if (checked.has(v)) return;
 			for (let i = 0; i < v.length; i++) {
 				const x = v[i];
 				if (typeof x === 'number') {
@@ -252,7 +287,7 @@ export function sanitize(r: AnalysisResponse, found: string[] = []): AnalysisRes
 	};
 	walk(r);
 	if (found.length) {
-		r.warnings.push(`Internal: ${found.length} non-finite value(s) replaced by null (first at ${found[0]}).`);
+		r.warnings.push(`Internal: ${found.length} non-finite value(s) replaced by null or cut off (first at ${found[0]}).`);
 		for (const p of found.slice(0, 20)) r.reasons[p] = 'not finite (numerical overflow)';
 	}
 	return r;

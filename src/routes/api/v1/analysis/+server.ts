@@ -7,7 +7,7 @@
  */
 import { json } from '@sveltejs/kit';
 import type { RequestHandler } from './$types';
-import { analyze } from '$lib/control/analyze';
+import { analysisToJson, analyze } from '$lib/control/analyze';
 import { AnalysisInputError } from '$lib/control/errors';
 import { parseAnalysisRequest } from '$lib/schemas/analysis';
 
@@ -22,7 +22,7 @@ export const POST: RequestHandler = async ({ request }) => {
 	const parsed = parseAnalysisRequest(body);
 	if (!parsed.ok) return json({ error: parsed.error, field: parsed.field }, { status: 400 });
 	try {
-		return json(analyze(parsed.data));
+		return json(analysisToJson(analyze(parsed.data)));
 	} catch (e) {
 		if (e instanceof AnalysisInputError) return json({ error: e.message, field: e.field || null }, { status: 400 });
 		throw e;
