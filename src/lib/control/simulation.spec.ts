@@ -98,13 +98,14 @@ describe('dead time is simulated exactly', () => {
 		expect(Math.abs((a.iae as number) - (b.iae as number)) / (b.iae as number)).toBeLessThan(1e-4);
 	});
 
-	it('the scalar kernel for up to six states and the indexed loop give the same responses (1e-12; every size 1–6, every controller type, ideal derivative with c = 1)', () => {
-		const plants: TransferFunction[] = [
+	it('the scalar kernels for up to six states and the indexed loops give the same responses (1e-12; with and without dead time, every size 1–6, every controller type, ideal derivative with c = 1)', () => {
+		const delayed: TransferFunction[] = [
 			{ num: [2], den: [5, 1], delay: 0.7 },
 			{ num: [1], den: [1, 0], delay: 0.3 },
 			{ num: [-0.5, 1], den: [2, 3, 1], delay: 0.45 },
 			{ num: [1], den: [0.12, 0.79, 1.89, 2.6, 1], delay: 0.4 }
 		];
+		const plants = [...delayed, ...delayed.map((p) => ({ ...p, delay: 0 }))];
 		const controllers: ControllerSettings[] = [
 			{ type: 'P', kp: 0.8 },
 			{ type: 'PI', kp: 0.9, ti: 3 },
@@ -118,7 +119,8 @@ describe('dead time is simulated exactly', () => {
 				const terms = controllerTerms(c);
 				const fast = simulateLoop(plant, terms, { tEnd: 25, points: 700 });
 				const slow = simulateLoop(plant, terms, { tEnd: 25, points: 700, genericKernel: true });
-				expect(fast.method).toBe('delay-line');
+				expect(fast.method).toBe(plant.delay > 0 ? 'delay-line' : 'exact-closed-loop');
+				expect(fast.truncatedAt).toBe(slow.truncatedAt);
 				for (const key of ['setpoint', 'disturbance'] as const)
 					for (const series of ['y', 'u'] as const) {
 						const a = fast[key][series];
@@ -129,7 +131,7 @@ describe('dead time is simulated exactly', () => {
 					}
 				cases++;
 			}
-		expect(cases).toBe(20);
+		expect(cases).toBe(40);
 	});
 	it('neglects a dead time below 1/64 of the sample spacing and says so', () => {
 		const sim = simulateLoop({ num: [1], den: [1, 1], delay: 1e-6 }, controllerTerms({ type: 'PI', kp: 1, ti: 1 }), { tEnd: 10, points: 100 });

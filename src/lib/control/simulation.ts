@@ -302,7 +302,7 @@ export function simulateLoop(plant: TransferFunction, terms: ControllerTerms, op
 		}
 	}
 	const h = dt / q;
-	const result = useDelay ? simulateDelayed(loop, theta, h, q, points, limit, terms, opts.genericKernel) : simulateDelayFree(loop, h, points, limit);
+	const result = useDelay ? simulateDelayed(loop, theta, h, q, points, limit, terms, opts.genericKernel) : simulateDelayFree(loop, h, points, limit, opts.genericKernel);
 	result.notes.unshift(...notes);
 	return result;
 }
@@ -323,7 +323,7 @@ function userGrid(fine: { t: Float64Array; setpoint: ResponseTrace; disturbance:
 	};
 }
 
-function simulateDelayFree(loop: Loop, h: number, points: number, limit: number): SimulationResult {
+function simulateDelayFree(loop: Loop, h: number, points: number, limit: number, genericKernel = false): SimulationResult {
 	const { nz, np, ss, kz, wr, wy, wdy, cpAp, cpBp } = loop;
 	const dp = ss.d;
 	const den = 1 - wy * dp - wdy * cpBp;
@@ -357,21 +357,10 @@ function simulateDelayFree(loop: Loop, h: number, points: number, limit: number)
 		bdist[r] = fromY * dyd;
 	}
 	const { phi, g0 } = discretize(acl, nz, [br, bdist], h, [false, false]);
-	const gr = g0[0];
-	const gd = g0[1];
 	const total = points;
-	const tFine = new Float64Array(total);
-	const ys = new Float64Array(total);
-	const us = new Float64Array(total);
-	const dys = new Float64Array(total);
-	const yd = new Float64Array(total);
-	const ud = new Float64Array(total);
-	const dyd2 = new Float64Array(total);
-	const zs = new Float64Array(nz);
-	const zd = new Float64Array(nz);
-	const tmp = new Float64Array(nz);
+	const zs0 = new Float64Array(nz);
 	const impulse = loop.impulse !== 0;
-	if (impulse) for (let r = 0; r < np; r++) zs[r] = (ss.b[r] * loop.impulse) / den;
+	if (impulse) for (let r = 0; r < np; r++) zs0[r] = (ss.b[r] * loop.impulse) / den;
 	// ẏ = cy·(Acl·z + b·input) for t > 0; precompute cy·Acl and cy·b.
 	const cyA = new Float64Array(nz);
 	for (let c = 0; c < nz; c++) {
@@ -379,31 +368,15 @@ function simulateDelayFree(loop: Loop, h: number, points: number, limit: number)
 		for (let r = 0; r < nz; r++) s += cy[r] * acl[r * nz + c];
 		cyA[c] = s;
 	}
-	const cyBr = dot(cy, br);
-	const cyBd = dot(cy, bdist);
-	let count = total;
-	let truncatedAt: number | null = null;
-	for (let k = 0; k < total; k++) {
-		tFine[k] = k * h;
-		const ysk = dot(cy, zs) + dyr;
-		const ydk = dot(cy, zd) + dyd;
-		ys[k] = ysk;
-		yd[k] = ydk;
-		us[k] = dot(vz, zs) + vr;
-		ud[k] = dot(vz, zd) + (vd - 1);
-		dys[k] = dot(cyA, zs) + cyBr;
-		dyd2[k] = dot(cyA, zd) + cyBd;
-		if (!(Math.abs(ysk) <= limit && Math.abs(ydk) <= limit && Math.abs(us[k]) <= limit * 1e3 && Math.abs(ud[k]) <= limit * 1e3)) {
-			count = Math.max(1, k);
-			truncatedAt = k * h;
-			break;
-		}
-		if (k === total - 1) break;
-		matVecInto(phi, nz, zs, tmp);
-		for (let r = 0; r < nz; r++) zs[r] = tmp[r] + gr[r];
-		matVecInto(phi, nz, zd, tmp);
-		for (let r = 0; r < nz; r++) zd[r] = tmp[r] + gd[r];
-	}
+	const coeffs: DelayFreeLoop = { nz, phi, gr: g0[0], gd: g0[1], cy, vz, cyA, dyr, dyd, vr, ud0: vd - 1, cyBr: dot(cy, br), cyBd: dot(cy, bdist) };
+	// The seven series share one allocation.
+	const store = new Float64Array(7 * total);
+	const part = (i: number) => store.subarray(i * total, (i + 1) * total);
+	const o: DelayFreeSeries = { t: part(0), ys: part(1), us: part(2), dys: part(3), yd: part(4), ud: part(5), dyd: part(6) };
+	const stop = (nz <= 6 && !genericKernel ? delayFreeRunSmall : delayFreeRun)(coeffs, zs0, h, total, limit, o);
+	const count = stop < total ? Math.max(1, stop) : total;
+	const truncatedAt = stop < total ? stop * h : null;
+	const { t: tFine, ys, us, dys, yd, ud, dyd: dyd2 } = o;
 	const cut = (a: Float64Array) => (count === total ? a : a.slice(0, count));
 	const fine = {
 		t: cut(tFine),
@@ -420,6 +393,125 @@ function simulateDelayFree(loop: Loop, h: number, points: number, limit: number)
 		truncatedAt,
 		notes: []
 	};
+}
+
+/** Outputs of the delay-free time loop (see `simulateDelayFree`). */
+interface DelayFreeSeries {
+	t: Float64Array;
+	ys: Float64Array;
+	us: Float64Array;
+	dys: Float64Array;
+	yd: Float64Array;
+	ud: Float64Array;
+	dyd: Float64Array;
+}
+
+/** Coefficients of the delay-free time loop: z ← Φ·z + g, outputs c·z + constant. */
+interface DelayFreeLoop {
+	nz: number;
+	phi: Float64Array;
+	gr: Float64Array;
+	gd: Float64Array;
+	cy: Float64Array;
+	vz: Float64Array;
+	cyA: Float64Array;
+	dyr: number;
+	dyd: number;
+	vr: number;
+	ud0: number;
+	cyBr: number;
+	cyBd: number;
+}
+
+/**
+ * The delay-free time loop for up to six states on scalar locals (padded with zeros; see
+ * `delayLineRunSmall`): set-point state zs (from zs0) and load state zd (from rest). Returns the
+ * index of the first sample beyond the limit, or `total` when there is none.
+ */
+function delayFreeRunSmall(c: DelayFreeLoop, zs0: Float64Array, h: number, total: number, limit: number, o: DelayFreeSeries): number {
+	const nz = c.nz;
+	if (nz > 6) throw new Error('delayFreeRunSmall: at most six states');
+	const P = new Float64Array(36);
+	for (let r = 0; r < nz; r++) for (let k = 0; k < nz; k++) P[r * 6 + k] = c.phi[r * nz + k];
+	const gr = pad6(c.gr, 0, nz);
+	const gd = pad6(c.gd, 0, nz);
+	const cy = pad6(c.cy, 0, nz);
+	const vz = pad6(c.vz, 0, nz);
+	const cyA = pad6(c.cyA, 0, nz);
+	const z0 = pad6(zs0, 0, nz);
+	const { dyr, dyd, vr, ud0, cyBr, cyBd } = c;
+	const uLimit = limit * 1e3;
+	const p00 = P[0], p01 = P[1], p02 = P[2], p03 = P[3], p04 = P[4], p05 = P[5];
+	const p10 = P[6], p11 = P[7], p12 = P[8], p13 = P[9], p14 = P[10], p15 = P[11];
+	const p20 = P[12], p21 = P[13], p22 = P[14], p23 = P[15], p24 = P[16], p25 = P[17];
+	const p30 = P[18], p31 = P[19], p32 = P[20], p33 = P[21], p34 = P[22], p35 = P[23];
+	const p40 = P[24], p41 = P[25], p42 = P[26], p43 = P[27], p44 = P[28], p45 = P[29];
+	const p50 = P[30], p51 = P[31], p52 = P[32], p53 = P[33], p54 = P[34], p55 = P[35];
+	const gr0 = gr[0], gr1 = gr[1], gr2 = gr[2], gr3 = gr[3], gr4 = gr[4], gr5 = gr[5];
+	const gd0 = gd[0], gd1 = gd[1], gd2 = gd[2], gd3 = gd[3], gd4 = gd[4], gd5 = gd[5];
+	const cy0 = cy[0], cy1 = cy[1], cy2 = cy[2], cy3 = cy[3], cy4 = cy[4], cy5 = cy[5];
+	const vz0 = vz[0], vz1 = vz[1], vz2 = vz[2], vz3 = vz[3], vz4 = vz[4], vz5 = vz[5];
+	const ca0 = cyA[0], ca1 = cyA[1], ca2 = cyA[2], ca3 = cyA[3], ca4 = cyA[4], ca5 = cyA[5];
+	let s0 = z0[0], s1 = z0[1], s2 = z0[2], s3 = z0[3], s4 = z0[4], s5 = z0[5];
+	let d0 = 0, d1 = 0, d2 = 0, d3 = 0, d4 = 0, d5 = 0;
+	for (let k = 0; k < total; k++) {
+		o.t[k] = k * h;
+		const ysk = cy0 * s0 + cy1 * s1 + cy2 * s2 + cy3 * s3 + cy4 * s4 + cy5 * s5 + dyr;
+		const ydk = cy0 * d0 + cy1 * d1 + cy2 * d2 + cy3 * d3 + cy4 * d4 + cy5 * d5 + dyd;
+		const usk = vz0 * s0 + vz1 * s1 + vz2 * s2 + vz3 * s3 + vz4 * s4 + vz5 * s5 + vr;
+		const udk = vz0 * d0 + vz1 * d1 + vz2 * d2 + vz3 * d3 + vz4 * d4 + vz5 * d5 + ud0;
+		o.ys[k] = ysk;
+		o.yd[k] = ydk;
+		o.us[k] = usk;
+		o.ud[k] = udk;
+		o.dys[k] = ca0 * s0 + ca1 * s1 + ca2 * s2 + ca3 * s3 + ca4 * s4 + ca5 * s5 + cyBr;
+		o.dyd[k] = ca0 * d0 + ca1 * d1 + ca2 * d2 + ca3 * d3 + ca4 * d4 + ca5 * d5 + cyBd;
+		if (!(Math.abs(ysk) <= limit && Math.abs(ydk) <= limit && Math.abs(usk) <= uLimit && Math.abs(udk) <= uLimit)) return k;
+		if (k === total - 1) break;
+		const ns0 = p00 * s0 + p01 * s1 + p02 * s2 + p03 * s3 + p04 * s4 + p05 * s5 + gr0;
+		const ns1 = p10 * s0 + p11 * s1 + p12 * s2 + p13 * s3 + p14 * s4 + p15 * s5 + gr1;
+		const ns2 = p20 * s0 + p21 * s1 + p22 * s2 + p23 * s3 + p24 * s4 + p25 * s5 + gr2;
+		const ns3 = p30 * s0 + p31 * s1 + p32 * s2 + p33 * s3 + p34 * s4 + p35 * s5 + gr3;
+		const ns4 = p40 * s0 + p41 * s1 + p42 * s2 + p43 * s3 + p44 * s4 + p45 * s5 + gr4;
+		const ns5 = p50 * s0 + p51 * s1 + p52 * s2 + p53 * s3 + p54 * s4 + p55 * s5 + gr5;
+		const nd0 = p00 * d0 + p01 * d1 + p02 * d2 + p03 * d3 + p04 * d4 + p05 * d5 + gd0;
+		const nd1 = p10 * d0 + p11 * d1 + p12 * d2 + p13 * d3 + p14 * d4 + p15 * d5 + gd1;
+		const nd2 = p20 * d0 + p21 * d1 + p22 * d2 + p23 * d3 + p24 * d4 + p25 * d5 + gd2;
+		const nd3 = p30 * d0 + p31 * d1 + p32 * d2 + p33 * d3 + p34 * d4 + p35 * d5 + gd3;
+		const nd4 = p40 * d0 + p41 * d1 + p42 * d2 + p43 * d3 + p44 * d4 + p45 * d5 + gd4;
+		const nd5 = p50 * d0 + p51 * d1 + p52 * d2 + p53 * d3 + p54 * d4 + p55 * d5 + gd5;
+		s0 = ns0; s1 = ns1; s2 = ns2; s3 = ns3; s4 = ns4; s5 = ns5;
+		d0 = nd0; d1 = nd1; d2 = nd2; d3 = nd3; d4 = nd4; d5 = nd5;
+	}
+	return total;
+}
+
+/** `delayFreeRunSmall` for any number of states, with indexed arrays. */
+function delayFreeRun(c: DelayFreeLoop, zs0: Float64Array, h: number, total: number, limit: number, o: DelayFreeSeries): number {
+	const { nz, phi, gr, gd, cy, vz, cyA, dyr, dyd, vr, ud0, cyBr, cyBd } = c;
+	const zs = Float64Array.from(zs0);
+	const zd = new Float64Array(nz);
+	const tmp = new Float64Array(nz);
+	for (let k = 0; k < total; k++) {
+		o.t[k] = k * h;
+		const ysk = dot(cy, zs) + dyr;
+		const ydk = dot(cy, zd) + dyd;
+		const usk = dot(vz, zs) + vr;
+		const udk = dot(vz, zd) + ud0;
+		o.ys[k] = ysk;
+		o.yd[k] = ydk;
+		o.us[k] = usk;
+		o.ud[k] = udk;
+		o.dys[k] = dot(cyA, zs) + cyBr;
+		o.dyd[k] = dot(cyA, zd) + cyBd;
+		if (!(Math.abs(ysk) <= limit && Math.abs(ydk) <= limit && Math.abs(usk) <= limit * 1e3 && Math.abs(udk) <= limit * 1e3)) return k;
+		if (k === total - 1) break;
+		matVecInto(phi, nz, zs, tmp);
+		for (let r = 0; r < nz; r++) zs[r] = tmp[r] + gr[r];
+		matVecInto(phi, nz, zd, tmp);
+		for (let r = 0; r < nz; r++) zd[r] = tmp[r] + gd[r];
+	}
+	return total;
 }
 
 interface DelayLine {
