@@ -255,7 +255,11 @@ export function sanitize(r: AnalysisResponse, found: string[] = []): AnalysisRes
 		// The time series were checked when they were taken (`checkedSeries`).
 		if (ArrayBuffer.isView(v)) return;
 		if (Array.isArray(v)) {
-			for (let i = 0; i < v.length; i++) {
+			// Numeric arrays (the Bode data) in one tight pass; the slow path only on a bad value.
+			let i = 0;
+			while (i < v.length && typeof v[i] === 'number' && v[i] - v[i] === 0) i++;
+			if (i === v.length) return;
+			for (; i < v.length; i++) {
 				const x = v[i];
 				if (typeof x === 'number') {
 					if (!Number.isFinite(x)) {

@@ -8,6 +8,7 @@
  * until the next request for the same slot and length, it is not zeroed on request, and nothing
  * that leaves the routine may be a scratch array (results are fresh arrays or copies).
  */
+/** The slot of each temporary, one per routine and role, so no two users of a slot overlap in time. */
 export const SLOT = {
 	expmX: 0,
 	expmX2: 1,
