@@ -888,8 +888,7 @@ function simulateDelayed(loop: Loop, theta: number, h: number, q: number, points
 	const Us = part(4).subarray(0, count);
 	const Ud = part(5).subarray(0, count);
 	const ctrl = discretizeController(loop, h);
-	controllerOutput(loop, ctrl, Ys, ideal ? DYs : null, 1, Us, count);
-	controllerOutput(loop, ctrl, Yd, ideal ? DYd : null, 0, Ud, count);
+	controllerOutputs(loop, ctrl, Ys, ideal ? DYs : null, Us, Yd, ideal ? DYd : null, Ud, count);
 	for (let k = 0; k < count; k++) {
 		if (!(Math.abs(Us[k]) <= limit * 1e3 && Math.abs(Ud[k]) <= limit * 1e3)) {
 			count = Math.max(1, k);
@@ -968,39 +967,57 @@ function discretizeController(loop: Loop, h: number): DiscreteController {
 }
 
 /**
- * Controller output u_k = Kc·xc + wr·r + wy·y_k + wdy·ẏ_k at the samples, with the controller
- * states xc (integral, derivative filter; at most two) driven by the constant set-point r (from
- * t = 0) and by y linear between samples (exact first-order-hold discretisation). The states are
- * held in scalars (padded with zeros to two), which keeps this hot loop free of array traffic.
+ * Controller outputs u_k = Kc·xc + wr·r + wy·y_k + wdy·ẏ_k at the samples of both tests in one
+ * pass: the set-point test (r = 1 from t = 0, PV ys) and the load test (r = 0, PV yd). The states
+ * xc (integral, derivative filter; at most two) are driven by r and by y linear between samples
+ * (exact first-order-hold discretisation) and held in scalars, padded with zeros to two.
  */
-function controllerOutput(loop: Loop, d: DiscreteController, y: Float64Array, dy: Float64Array | null, r: number, out: Float64Array, count: number): void {
+function controllerOutputs(
+	loop: Loop,
+	d: DiscreteController,
+	ys: Float64Array,
+	dys: Float64Array | null,
+	us: Float64Array,
+	yd: Float64Array,
+	dyd: Float64Array | null,
+	ud: Float64Array,
+	count: number
+): void {
 	const { wr, wy, wdy } = loop;
 	const { nc, phi, gr, gy0, gy1, kc } = d;
-	const base = wr * r;
-	if (nc > 2) throw new Error('controllerOutput: at most two controller states');
-	const at = (v: Float64Array, i: number) => (i < nc ? v[i] : 0);
+	if (nc > 2) throw new Error('controllerOutputs: at most two controller states');
 	const p00 = nc > 0 ? phi[0] : 0;
 	const p01 = nc > 1 ? phi[1] : 0;
 	const p10 = nc > 1 ? phi[nc] : 0;
 	const p11 = nc > 1 ? phi[nc + 1] : 0;
-	const k0 = at(kc, 0);
-	const k1 = at(kc, 1);
-	const r0 = at(gr, 0) * r;
-	const r1 = at(gr, 1) * r;
-	const a0 = at(gy0, 0);
-	const a1 = at(gy0, 1);
-	const b0 = at(gy1, 0);
-	const b1 = at(gy1, 1);
-	const dGain = dy ? wdy : 0;
-	let x0 = 0;
-	let x1 = 0;
+	const k0 = nc > 0 ? kc[0] : 0;
+	const k1 = nc > 1 ? kc[1] : 0;
+	// The set-point (r = 1) enters the set-point test only.
+	const r0 = nc > 0 ? gr[0] : 0;
+	const r1 = nc > 1 ? gr[1] : 0;
+	const a0 = nc > 0 ? gy0[0] : 0;
+	const a1 = nc > 1 ? gy0[1] : 0;
+	const b0 = nc > 0 ? gy1[0] : 0;
+	const b1 = nc > 1 ? gy1[1] : 0;
+	const gs = dys ? wdy : 0;
+	const gd = dyd ? wdy : 0;
+	let s0 = 0;
+	let s1 = 0;
+	let e0 = 0;
+	let e1 = 0;
 	for (let k = 0; k < count; k++) {
-		const yk = y[k];
-		out[k] = base + wy * yk + (dy ? dGain * dy[k] : 0) + k0 * x0 + k1 * x1;
+		const ysk = ys[k];
+		const ydk = yd[k];
+		us[k] = wr + wy * ysk + (dys ? gs * dys[k] : 0) + k0 * s0 + k1 * s1;
+		ud[k] = wy * ydk + (dyd ? gd * dyd[k] : 0) + k0 * e0 + k1 * e1;
 		if (k === count - 1) break;
-		const dyk = y[k + 1] - yk;
-		const n0 = p00 * x0 + p01 * x1 + r0 + a0 * yk + b0 * dyk;
-		x1 = p10 * x0 + p11 * x1 + r1 + a1 * yk + b1 * dyk;
-		x0 = n0;
+		const dS = ys[k + 1] - ysk;
+		const dD = yd[k + 1] - ydk;
+		const ns0 = p00 * s0 + p01 * s1 + r0 + a0 * ysk + b0 * dS;
+		s1 = p10 * s0 + p11 * s1 + r1 + a1 * ysk + b1 * dS;
+		s0 = ns0;
+		const ne0 = p00 * e0 + p01 * e1 + a0 * ydk + b0 * dD;
+		e1 = p10 * e0 + p11 * e1 + a1 * ydk + b1 * dD;
+		e0 = ne0;
 	}
 }
