@@ -71,16 +71,17 @@ export function normInf(a: Matrix): number {
 }
 
 /**
- * Solves A·X = B in place of a copy by LU with partial pivoting (Golub & Van Loan, Matrix
+ * Solves A·X = B (into `out` when given) by LU with partial pivoting (Golub & Van Loan, Matrix
  * Computations, 4th ed., Alg. 3.4.1). Throws when A is singular to working precision.
  */
-export function solve(a: Matrix, b: Matrix): Matrix {
+export function solve(a: Matrix, b: Matrix, out?: Float64Array): Matrix {
 	const n = a.rows;
 	if (a.cols !== n || b.rows !== n) throw new Error('solve: shape mismatch');
-	// The factors are a temporary (scratch); the solution is a fresh array.
+	// The factors are a temporary (scratch); the solution goes to `out` (same size as B) or a fresh array.
 	const lu = scratch(SLOT.solveLu, n * n);
 	lu.set(a.data.length === n * n ? a.data : a.data.subarray(0, n * n));
-	const x = new Float64Array(b.data);
+	const x = out ?? new Float64Array(b.data.length);
+	x.set(b.data);
 	const m = b.cols;
 	let scale = 0;
 	for (let i = 0; i < lu.length; i++) scale = Math.max(scale, Math.abs(lu[i]));
@@ -148,9 +149,9 @@ function mulInto(a: Float64Array, b: Float64Array, out: Float64Array, n: number)
  * from its even and odd parts, p(X) = V + U and q(X) = V − U with V = Σ c_2k·X^2k and
  * U = X·Σ c_2k+1·X^2k (Higham, SIAM J. Matrix Anal. Appl. 26 (2005) 1179–1193, §2), in four
  * matrix products instead of six. Works in a few preallocated buffers (it runs on every
- * recompute of the bench).
+ * recompute of the bench). The result goes to `out` (n² elements) when given, else a fresh array.
  */
-export function expm(a: Matrix): Matrix {
+export function expm(a: Matrix, out?: Float64Array): Matrix {
 	const n = a.rows;
 	if (a.cols !== n) throw new Error('expm: matrix must be square');
 	const norm = normInf(a);
@@ -190,7 +191,7 @@ export function expm(a: Matrix): Matrix {
 		numer[i] = v[i] + u[i];
 		denom[i] = v[i] - u[i];
 	}
-	const result = solve({ rows: n, cols: n, data: denom }, { rows: n, cols: n, data: numer }).data;
+	const result = solve({ rows: n, cols: n, data: denom }, { rows: n, cols: n, data: numer }, out).data;
 	let e: Float64Array = result;
 	let tmp: Float64Array = odd;
 	for (let k = 0; k < s; k++) {

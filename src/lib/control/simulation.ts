@@ -222,7 +222,8 @@ function discretize(
 	}
 	const eps = normTop > 0 ? Math.pow(2, Math.max(-30, Math.min(0, Math.floor(Math.log2(normTop))))) : 1;
 	rampIdx.forEach((j, k) => (bd[(n + j) * size + n + m + k] = eps));
-	const e = expm(big).data;
+	// The exponential is read right away: a scratch array (see workspace.ts).
+	const e = expm(big, scratch(SLOT.discretizeExp, size * size)).data;
 	const phi = new Float64Array(n * n);
 	for (let r = 0; r < n; r++) for (let c = 0; c < n; c++) phi[r * n + c] = e[r * size + c];
 	const g0: Float64Array[] = [];

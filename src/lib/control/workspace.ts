@@ -18,6 +18,7 @@ export const SLOT = {
 	expmEven: 5,
 	solveLu: 6,
 	discretizeBlock: 7,
+	discretizeExp: 12,
 	companion: 8,
 	companionRe: 9,
 	companionIm: 10,
