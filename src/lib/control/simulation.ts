@@ -23,6 +23,10 @@
  * h = Δ/q with Δ the user spacing and q the smallest integer with h ≤ θ (needed by the explicit
  * delay line) and h·|p| ≤ 2 for the fastest plant pole p, at most 64; a dead time below Δ/64 is
  * neglected in the time response (with a note). Without dead time h = Δ (exact at any step).
+ *
+ * Speed: for loops of up to six states the time loops run on scalar locals (`delayLineRunSmall`,
+ * `delayFreeRunSmall`), several times faster in V8 than the indexed loops kept for larger ones;
+ * a unit test holds the two equal.
  */
 import type { Complex, TransferFunction } from './types';
 import type { ControllerTerms } from './controller';
@@ -724,7 +728,7 @@ function delayLineRun(loop: Loop, dl: DelayLine, setpoint: boolean, n: number, l
 	return n;
 }
 
-/** The first `nz` entries of v in a vector of six (zeros after). */
+/** Entries from…to−1 of v in a vector of six, zeros elsewhere (the scalar kernels' padding). */
 function pad6(v: ArrayLike<number>, from: number, to: number): Float64Array {
 	const out = new Float64Array(6);
 	for (let r = from; r < to; r++) out[r] = v[r];
