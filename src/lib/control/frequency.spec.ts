@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import { analysisGrid, bode, frequencyRange, logspace, loopLogMagnitude, loopModel, loopModelFromFactors, loopPhase, stabilityMargins } from './frequency';
+import { analysisGrid, bode, evaluateLoop, frequencyRange, logspace, loopLogMagnitude, loopModel, loopModelFromFactors, loopPhase, stabilityMargins } from './frequency';
 import { controllerPolynomials, controllerTerms } from './controller';
 import { polyMul } from './polynomial';
 import { tfEval } from './transfer-function';
@@ -92,6 +92,52 @@ describe('log-spaced grid', () => {
 			expect(w[0] / lo).toBeCloseTo(1, 14);
 			expect(w[n - 1] / hi).toBeCloseTo(1, 13);
 		}
+	});
+});
+
+describe('grid evaluation', () => {
+	it('carries the phase along the grid to the factor-by-factor value (1e-9 rad): random roots in both half-planes, on the axis, lightly damped, at the origin, with dead time', () => {
+		const rootArb = fc.oneof(
+			fc.record({ re: fc.double({ min: -30, max: -1e-3, noNaN: true }), im: fc.constant(0) }),
+			fc.record({ re: fc.double({ min: 1e-3, max: 5, noNaN: true }), im: fc.constant(0) }),
+			fc.record({ re: fc.double({ min: -0.05, max: -1e-4, noNaN: true }), im: fc.double({ min: 0.1, max: 20, noNaN: true }) }),
+			fc.record({ re: fc.double({ min: 0.01, max: 3, noNaN: true }), im: fc.double({ min: 0.1, max: 10, noNaN: true }) }),
+			fc.record({ re: fc.constant(0), im: fc.double({ min: 0.2, max: 8, noNaN: true }) }),
+			fc.constant({ re: 0, im: 0 })
+		);
+		// Complex roots come with their conjugates, as in a real polynomial.
+		const withConjugates = (rs: { re: number; im: number }[]) => rs.flatMap((r) => (r.im === 0 ? [r] : [r, { re: r.re, im: -r.im }]));
+		fc.assert(
+			fc.property(fc.array(rootArb, { maxLength: 4 }), fc.array(rootArb, { minLength: 1, maxLength: 5 }), fc.double({ min: 0, max: 3, noNaN: true }), fc.boolean(), (zs, ps, delay, negative) => {
+				const m = loopModelFromFactors(negative ? -2 : 2, withConjugates(zs), withConjugates(ps), delay);
+				const r = frequencyRange(m);
+				const grid = analysisGrid(m, logspace(r.wMin, r.wMax, 400));
+				const v = evaluateLoop(m, grid);
+				for (let i = 0; i < grid.length; i++) {
+					const ref = loopPhase(m, grid[i]);
+					if (!Number.isFinite(ref)) continue;
+					expect(Math.abs(v.ph[i] - ref), `ω = ${grid[i]}`).toBeLessThan(1e-9 * Math.max(1, Math.abs(ref)));
+				}
+			}),
+			{ seed: 4711, numRuns: 300 }
+		);
+	});
+});
+
+describe('grid evaluation on a coarse grid', () => {
+	it('does not carry the phase across two lightly damped pole pairs between two points (the phase turns by almost 2π there): it evaluates factor by factor', () => {
+		const poles = [
+			{ re: -0.001, im: 1 },
+			{ re: -0.001, im: -1 },
+			{ re: -0.0012, im: 1.0001 },
+			{ re: -0.0012, im: -1.0001 }
+		];
+		const m = loopModelFromFactors(1, [], poles);
+		const grid = [0.5, 0.9, 1.1, 2];
+		const v = evaluateLoop(m, grid);
+		grid.forEach((w, i) => expect(Math.abs(v.ph[i] - loopPhase(m, w)), `ω = ${w}`).toBeLessThan(1e-12));
+		// Across the resonance the true phase falls by about 2π (two pairs, −π each).
+		expect(v.ph[2] - v.ph[1]).toBeLessThan(-6);
 	});
 });
 

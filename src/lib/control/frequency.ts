@@ -285,9 +285,66 @@ export function evaluateLoop(m: LoopModel, grid: ArrayLike<number>): GridValues 
 	const n = grid.length;
 	const lm = new Float64Array(n);
 	const ph = new Float64Array(n);
+	const { zr, zi, pr, pi } = m;
+	const factors = zr.length + pi.length;
+	// Along an increasing grid the phase of the rational part is carried from one point to the
+	// next by the angle between the products Π(jω − z)·Π conj(jω − p) at the two points: one atan2
+	// per point instead of one per pair of factors. The step is unambiguous when the phase cannot
+	// turn by π between the points; each factor turns by at most Δω/d (d its root's distance from
+	// the segment [jω₀, jω₁]), so factors·Δω < min d is required, else (near a lightly damped or
+	// axis root, after an overflow, at the first point) the point is evaluated factor by factor.
+	let prevRe = 0;
+	let prevIm = 0;
+	let prevRational = 0;
+	let prevOk = false;
 	for (let i = 0; i < n; i++) {
-		lm[i] = loopLogMagnitude(m, grid[i]);
-		ph[i] = loopPhase(m, grid[i]);
+		const w = grid[i];
+		lm[i] = loopLogMagnitude(m, w);
+		const w0 = i > 0 ? grid[i - 1] : w;
+		let re = 1;
+		let im = 0;
+		let dMin = Infinity;
+		for (let k = 0; k < zr.length; k++) {
+			const a = zr[k];
+			const b = zi[k];
+			if (a === 0 && b === 0) continue; // the origin: constant phase for ω > 0
+			const x = -a;
+			const y = w - b;
+			const nr = re * x - im * y;
+			im = re * y + im * x;
+			re = nr;
+			const d = Math.max(Math.abs(a), b < w0 ? w0 - b : b > w ? b - w : 0);
+			if (d < dMin) dMin = d;
+		}
+		for (let k = 0; k < pr.length; k++) {
+			const a = pr[k];
+			const b = pi[k];
+			if (a === 0 && b === 0) continue;
+			// conj(jω − p): the pole's phase counts negatively.
+			const x = -a;
+			const y = b - w;
+			const nr = re * x - im * y;
+			im = re * y + im * x;
+			re = nr;
+			const d = Math.max(Math.abs(a), b < w0 ? w0 - b : b > w ? b - w : 0);
+			if (d < dMin) dMin = d;
+		}
+		const size = Math.abs(re) + Math.abs(im);
+		const ok = size > 1e-280 && size < 1e280;
+		// Phase of L minus the rational part's: the gain's sign, origin roots, dead time, offset.
+		const rest = (m.gain < 0 ? Math.PI : 0) + m.originCount * (w > 0 ? Math.PI / 2 : Math.atan2(w, -0)) - w * m.delay + m.phaseOffset;
+		let rational: number;
+		if (ok && prevOk && w > w0 && w0 > 0 && factors * (w - w0) < dMin) {
+			rational = prevRational + Math.atan2(im * prevRe - re * prevIm, re * prevRe + im * prevIm);
+			ph[i] = rational + rest;
+		} else {
+			ph[i] = loopPhase(m, w);
+			rational = ph[i] - rest;
+		}
+		prevRe = re;
+		prevIm = im;
+		prevRational = rational;
+		prevOk = ok;
 	}
 	return { lm, ph };
 }
