@@ -96,7 +96,7 @@ describe('log-spaced grid', () => {
 });
 
 describe('grid evaluation', () => {
-	it('carries the phase along the grid to the factor-by-factor value (1e-9 rad): random roots in both half-planes, on the axis, lightly damped, at the origin, with dead time', () => {
+	it('carries the phase along the grid to the factor-by-factor value (1e-9 rad) and gives the same log-magnitude (1e-12): random roots in both half-planes, on the axis, lightly damped, at the origin, with dead time', () => {
 		const rootArb = fc.oneof(
 			fc.record({ re: fc.double({ min: -30, max: -1e-3, noNaN: true }), im: fc.constant(0) }),
 			fc.record({ re: fc.double({ min: 1e-3, max: 5, noNaN: true }), im: fc.constant(0) }),
@@ -115,6 +115,7 @@ describe('grid evaluation', () => {
 				const v = evaluateLoop(m, grid);
 				for (let i = 0; i < grid.length; i++) {
 					const ref = loopPhase(m, grid[i]);
+					expect(Math.abs(v.lm[i] - loopLogMagnitude(m, grid[i])), `log|L| at ω = ${grid[i]}`).toBeLessThan(1e-12 * Math.max(1, Math.abs(v.lm[i])));
 					if (!Number.isFinite(ref)) continue;
 					expect(Math.abs(v.ph[i] - ref), `ω = ${grid[i]}`).toBeLessThan(1e-9 * Math.max(1, Math.abs(ref)));
 				}

@@ -287,51 +287,65 @@ export function evaluateLoop(m: LoopModel, grid: ArrayLike<number>): GridValues 
 	const ph = new Float64Array(n);
 	const { zr, zi, pr, pi } = m;
 	const factors = zr.length + pi.length;
-	// Along an increasing grid the phase of the rational part is carried from one point to the
-	// next by the angle between the products Π(jω − z)·Π conj(jω − p) at the two points: one atan2
-	// per point instead of one per pair of factors. The step is unambiguous when the phase cannot
-	// turn by π between the points; each factor turns by at most Δω/d (d its root's distance from
-	// the segment [jω₀, jω₁]), so factors·Δω < min d is required, else (near a lightly damped or
-	// axis root, after an overflow, at the first point) the point is evaluated factor by factor.
+	const logGain = Math.log(Math.abs(m.gain));
+	// At each point the products N = Π(jω − z) and D = Π(jω − p) give the magnitude, one logarithm
+	// of |N|²/|D|². Along an increasing grid the phase of the rational part is carried from one
+	// point to the next by the angle between N·conj(D) at the two points: one atan2 per point
+	// instead of one per pair of factors. The step is unambiguous when the phase cannot turn by π
+	// between the points; each factor turns by at most Δω/d (d its root's distance from the
+	// segment [jω₀, jω₁]), so factors·Δω < min d is required. Otherwise (near a lightly damped or
+	// axis root, at the first point, or when a product leaves a safe range) the point is evaluated
+	// factor by factor.
 	let prevRe = 0;
 	let prevIm = 0;
 	let prevRational = 0;
 	let prevOk = false;
 	for (let i = 0; i < n; i++) {
 		const w = grid[i];
-		lm[i] = loopLogMagnitude(m, w);
 		const w0 = i > 0 ? grid[i - 1] : w;
-		let re = 1;
-		let im = 0;
+		let nRe = 1;
+		let nIm = 0;
+		let dRe = 1;
+		let dIm = 0;
 		let dMin = Infinity;
 		for (let k = 0; k < zr.length; k++) {
 			const a = zr[k];
 			const b = zi[k];
-			if (a === 0 && b === 0) continue; // the origin: constant phase for ω > 0
+			// jω − z = −a + j(ω − b); a root at the origin gives jω, whose phase stays 90° for ω > 0.
 			const x = -a;
 			const y = w - b;
-			const nr = re * x - im * y;
-			im = re * y + im * x;
-			re = nr;
+			const t = nRe * x - nIm * y;
+			nIm = nRe * y + nIm * x;
+			nRe = t;
+			if (a === 0 && b === 0) continue;
 			const d = Math.max(Math.abs(a), b < w0 ? w0 - b : b > w ? b - w : 0);
 			if (d < dMin) dMin = d;
 		}
 		for (let k = 0; k < pr.length; k++) {
 			const a = pr[k];
 			const b = pi[k];
-			if (a === 0 && b === 0) continue;
-			// conj(jω − p): the pole's phase counts negatively.
 			const x = -a;
-			const y = b - w;
-			const nr = re * x - im * y;
-			im = re * y + im * x;
-			re = nr;
+			const y = w - b;
+			const t = dRe * x - dIm * y;
+			dIm = dRe * y + dIm * x;
+			dRe = t;
+			if (a === 0 && b === 0) continue;
 			const d = Math.max(Math.abs(a), b < w0 ? w0 - b : b > w ? b - w : 0);
 			if (d < dMin) dMin = d;
 		}
-		const size = Math.abs(re) + Math.abs(im);
-		const ok = size > 1e-280 && size < 1e280;
-		// Phase of L minus the rational part's: the gain's sign, origin roots, dead time, offset.
+		const nSize = Math.abs(nRe) + Math.abs(nIm);
+		const dSize = Math.abs(dRe) + Math.abs(dIm);
+		// Squares of the products stay finite and normal inside 1e±140.
+		const ok = nSize > 1e-140 && nSize < 1e140 && dSize > 1e-140 && dSize < 1e140;
+		// Direction of N·conj(D): the phase of the rational part.
+		const re = nRe * dRe + nIm * dIm;
+		const im = nIm * dRe - nRe * dIm;
+		if (ok) {
+			const acc = logGain + 0.5 * Math.log((nRe * nRe + nIm * nIm) / (dRe * dRe + dIm * dIm));
+			lm[i] = acc < 700 ? (acc > -700 ? acc : -700) : 700;
+		} else lm[i] = loopLogMagnitude(m, w);
+		// Phase of L minus the carried part: the gain's sign, the origin roots' constant ±90° (their
+		// factors jω are in N and D but never change the step), dead time, offset.
 		const rest = (m.gain < 0 ? Math.PI : 0) + m.originCount * (w > 0 ? Math.PI / 2 : Math.atan2(w, -0)) - w * m.delay + m.phaseOffset;
 		let rational: number;
 		if (ok && prevOk && w > w0 && w0 > 0 && factors * (w - w0) < dMin) {
