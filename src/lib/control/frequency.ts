@@ -308,30 +308,32 @@ export function evaluateLoop(m: LoopModel, grid: ArrayLike<number>): GridValues 
 		let dRe = 1;
 		let dIm = 0;
 		let dMin = Infinity;
-		for (let k = 0; k < zr.length; k++) {
-			const a = zr[k];
-			const b = zi[k];
-			// jω − z = −a + j(ω − b); a root at the origin gives jω, whose phase stays 90° for ω > 0.
-			const x = -a;
-			const y = w - b;
-			const t = nRe * x - nIm * y;
-			nIm = nRe * y + nIm * x;
-			nRe = t;
-			if (a === 0 && b === 0) continue;
-			const d = Math.max(Math.abs(a), b < w0 ? w0 - b : b > w ? b - w : 0);
-			if (d < dMin) dMin = d;
-		}
-		for (let k = 0; k < pr.length; k++) {
-			const a = pr[k];
-			const b = pi[k];
-			const x = -a;
-			const y = w - b;
-			const t = dRe * x - dIm * y;
-			dIm = dRe * y + dIm * x;
-			dRe = t;
-			if (a === 0 && b === 0) continue;
-			const d = Math.max(Math.abs(a), b < w0 ? w0 - b : b > w ? b - w : 0);
-			if (d < dMin) dMin = d;
+		// side 0: the zeros into N; side 1: the poles into D.
+		for (let side = 0; side < 2; side++) {
+			const rr = side === 0 ? zr : pr;
+			const ri = side === 0 ? zi : pi;
+			let pRe = 1;
+			let pIm = 0;
+			for (let k = 0; k < rr.length; k++) {
+				const a = rr[k];
+				const b = ri[k];
+				// jω − r = −a + j(ω − b); a root at the origin gives jω, whose phase stays 90° for ω > 0.
+				const x = -a;
+				const y = w - b;
+				const t = pRe * x - pIm * y;
+				pIm = pRe * y + pIm * x;
+				pRe = t;
+				if (a === 0 && b === 0) continue;
+				const d = Math.max(Math.abs(a), b < w0 ? w0 - b : b > w ? b - w : 0);
+				if (d < dMin) dMin = d;
+			}
+			if (side === 0) {
+				nRe = pRe;
+				nIm = pIm;
+			} else {
+				dRe = pRe;
+				dIm = pIm;
+			}
 		}
 		const nSize = Math.abs(nRe) + Math.abs(nIm);
 		const dSize = Math.abs(dRe) + Math.abs(dIm);
