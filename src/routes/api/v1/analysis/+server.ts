@@ -5,26 +5,10 @@
  * field for a body that fails the schema or a loop that cannot be analysed (e.g. ill-posed).
  * Authentication is enforced in hooks.
  */
-import { json } from '@sveltejs/kit';
-import type { RequestHandler } from './$types';
 import { analysisToJson, analyze } from '$lib/control/analyze';
 import { AnalysisInputError } from '$lib/control/errors';
 import { parseAnalysisRequest } from '$lib/schemas/analysis';
+import { computationEndpoint } from '$lib/server/computation-endpoint';
 
 /** Validates the body, runs the analysis; 400 `{ error, field }` for invalid input. */
-export const POST: RequestHandler = async ({ request }) => {
-	let body: unknown;
-	try {
-		body = await request.json();
-	} catch {
-		return json({ error: 'The request body must be JSON.', field: null }, { status: 400 });
-	}
-	const parsed = parseAnalysisRequest(body);
-	if (!parsed.ok) return json({ error: parsed.error, field: parsed.field }, { status: 400 });
-	try {
-		return json(analysisToJson(analyze(parsed.data)));
-	} catch (e) {
-		if (e instanceof AnalysisInputError) return json({ error: e.message, field: e.field || null }, { status: 400 });
-		throw e;
-	}
-};
+export const POST = computationEndpoint(parseAnalysisRequest, (request) => analysisToJson(analyze(request)), [AnalysisInputError]);
