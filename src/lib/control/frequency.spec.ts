@@ -122,7 +122,8 @@ describe('grid evaluation', () => {
 			}),
 			{ seed: 4711, numRuns: 300 }
 		);
-	});
+		// 300 models × 400+ points, each checked against the pointwise phase: seconds on a busy machine.
+	}, 30_000);
 });
 
 describe('grid evaluation on a coarse grid', () => {

@@ -16,7 +16,7 @@ import { sequelize } from './db/connection';
 import { can } from '../auth/roles';
 import { getModelPage, listTuningSets, type RevisionDto } from './models';
 import { getRevision, type Acting, type WorkflowRevisionDto } from './revisions';
-import { parametersForForm, type StoredParameters } from '../workflow/model-values';
+import { parametersForForm, type OperatingPoint, type SignalSpan, type StoredParameters } from '../workflow/model-values';
 import type { StructureValue } from '../schemas/revision';
 import { METHOD_LABELS, structureLabel } from '../format';
 
@@ -41,9 +41,9 @@ export interface RevisionFacts {
 	gain: number | null;
 	timeConstantSeconds: number | null;
 	timeUnit: 's' | 'min';
-	mv: { name: string; unit: string; min: number; max: number };
-	pv: { name: string; unit: string; min: number; max: number };
-	operatingPoint: { mv: number | null; pv: number | null; note: string | null };
+	mv: SignalSpan;
+	pv: SignalSpan;
+	operatingPoint: OperatingPoint;
 	provenance: {
 		method: string;
 		methodName: string;

@@ -14,6 +14,7 @@ import { NotFound } from './errors';
 import { renderNoteMarkdown } from './markdown';
 import type { Actor } from './register';
 import { todayUtc } from '../format';
+import type { OperatingPoint, SignalSpan } from '../workflow/model-values';
 
 /** A revision as the model page shows it. Times in seconds; dates `YYYY-MM-DD`; timestamps ISO UTC. */
 export interface RevisionDto {
@@ -29,9 +30,9 @@ export interface RevisionDto {
 	gain: number | null;
 	timeConstantSeconds: number | null;
 	timeUnit: 's' | 'min';
-	mv: { name: string; unit: string; min: number; max: number };
-	pv: { name: string; unit: string; min: number; max: number };
-	operatingPoint: { mv: number | null; pv: number | null; note: string | null };
+	mv: SignalSpan;
+	pv: SignalSpan;
+	operatingPoint: OperatingPoint;
 	provenance: {
 		method: string;
 		testDate: string | null;

@@ -20,7 +20,7 @@ import { assertCan, can } from '../auth/roles';
 import { InvalidInput, NotFound } from './errors';
 import { decide, OPEN_STATES, TRANSITIONS, type Transition, type WorkflowState } from '../workflow/state-machine';
 import { largeChanges, type ChangeSnapshot, type LargeChange } from '../workflow/change-size';
-import { parametersForForm, toStoredModel, type StoredParameters } from '../workflow/model-values';
+import { parametersForForm, toStoredModel, type OperatingPoint, type SignalSpan, type StoredParameters } from '../workflow/model-values';
 import { compareRevisions, type ComparableRevision, type RevisionComparison } from '../workflow/revision-diff';
 import type { ModelCreateInput, RevisionInput, StructureValue } from '../schemas/revision';
 import { ConflictError, WorkflowConflict, enforce, isoOrNull, step, utcToday, type Acting, type WriteOptions } from './workflow-common';
@@ -53,9 +53,9 @@ export interface WorkflowRevisionDto {
 	gain: number | null;
 	timeConstantSeconds: number | null;
 	timeUnit: 's' | 'min';
-	mv: { name: string; unit: string; min: number; max: number };
-	pv: { name: string; unit: string; min: number; max: number };
-	operatingPoint: { mv: number | null; pv: number | null; note: string | null };
+	mv: SignalSpan;
+	pv: SignalSpan;
+	operatingPoint: OperatingPoint;
 	provenance: {
 		method: string;
 		testDate: string | null;
@@ -137,33 +137,11 @@ async function toRevisionDto(r: ModelRevision, transaction?: Transaction): Promi
 	const contributors = await contributorIds(Number(r.id), transaction);
 	const who = await names([Number(r.author_id), ...(r.reviewer_id ? [Number(r.reviewer_id)] : []), ...contributors], transaction);
 	const ref = (id: number): PersonRef => ({ id, name: who.get(id) ?? `#${id}` });
+	const values = revisionValues(r);
 	return {
-		id: Number(r.id),
+		...values,
 		modelId: Number(r.model_id),
-		no: Number(r.revision_no),
-		state: r.state as WorkflowState,
-		structure: r.structure as StructureValue,
-		parameters: r.parameters as StoredParameters,
-		num: r.num,
-		den: r.den,
-		delaySeconds: Number(r.delay_s),
-		gain: num(r.gain),
-		timeConstantSeconds: num(r.time_constant_s),
-		timeUnit: r.time_unit === 'min' ? 'min' : 's',
-		mv: { name: r.mv_name, unit: r.mv_unit, min: Number(r.mv_min), max: Number(r.mv_max) },
-		pv: { name: r.pv_name, unit: r.pv_unit, min: Number(r.pv_min), max: Number(r.pv_max) },
-		operatingPoint: { mv: num(r.op_mv), pv: num(r.op_pv), note: r.op_note },
-		provenance: {
-			method: r.method,
-			testDate: r.test_date,
-			dataAttachmentId: num(r.data_attachment_id),
-			fitR2: num(r.fit_r2),
-			fitRmse: num(r.fit_rmse),
-			validRange: r.valid_range,
-			revalidateBy: r.revalidate_by
-		},
-		changeSummary: r.change_summary,
-		reviewComment: r.review_comment,
+		provenance: { ...values.provenance, dataAttachmentId: num(r.data_attachment_id) },
 		author: ref(Number(r.author_id)),
 		reviewer: r.reviewer_id ? ref(Number(r.reviewer_id)) : null,
 		contributors: contributors.map(ref),
@@ -1286,19 +1264,20 @@ export async function getHistory(acting: Acting, modelId: number): Promise<{ mod
 	};
 }
 
-function comparable(r: ModelRevision): ComparableRevision {
+/** A stored revision's values (the comparison's view of it, and the core of its DTO). */
+function revisionValues(r: ModelRevision) {
 	return {
 		id: Number(r.id),
 		no: Number(r.revision_no),
-		state: r.state,
-		structure: r.structure,
+		state: r.state as WorkflowState,
+		structure: r.structure as StructureValue,
 		parameters: r.parameters as StoredParameters,
 		num: r.num,
 		den: r.den,
 		delaySeconds: Number(r.delay_s),
 		gain: num(r.gain),
 		timeConstantSeconds: num(r.time_constant_s),
-		timeUnit: r.time_unit === 'min' ? 'min' : 's',
+		timeUnit: (r.time_unit === 'min' ? 'min' : 's') as 's' | 'min',
 		mv: { name: r.mv_name, unit: r.mv_unit, min: Number(r.mv_min), max: Number(r.mv_max) },
 		pv: { name: r.pv_name, unit: r.pv_unit, min: Number(r.pv_min), max: Number(r.pv_max) },
 		operatingPoint: { mv: num(r.op_mv), pv: num(r.op_pv), note: r.op_note },
@@ -1312,7 +1291,7 @@ function comparable(r: ModelRevision): ComparableRevision {
 		},
 		changeSummary: r.change_summary,
 		reviewComment: r.review_comment
-	};
+	} satisfies ComparableRevision;
 }
 
 /**
@@ -1329,5 +1308,5 @@ export async function diffRevisions(acting: Acting, fromRevisionId: number, toRe
 	if (!a || !visible(acting, a)) throw new NotFound('There is no revision with this id.');
 	if (!b || !visible(acting, b)) throw new NotFound('There is no revision with this id.');
 	if (Number(a.model_id) !== Number(b.model_id)) throw new InvalidInput('to', 'Both revisions must belong to the same model.');
-	return compareRevisions(comparable(a), comparable(b));
+	return compareRevisions(revisionValues(a), revisionValues(b));
 }

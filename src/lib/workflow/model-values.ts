@@ -28,6 +28,21 @@ export interface StoredParameters {
 	den?: number[];
 }
 
+/** A manipulated or process variable of a model: its name, engineering unit and span. */
+export interface SignalSpan {
+	name: string;
+	unit: string;
+	min: number;
+	max: number;
+}
+
+/** The operating point at which the model was identified (MV and PV values, a note). */
+export interface OperatingPoint {
+	mv: number | null;
+	pv: number | null;
+	note: string | null;
+}
+
 /** What a revision stores about its dynamics. */
 export interface StoredModel {
 	structure: StructureValue;

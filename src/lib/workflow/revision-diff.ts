@@ -6,7 +6,7 @@
  */
 import { diffWords } from 'diff';
 import { largeChanges, relativeChange, type LargeChange } from './change-size';
-import type { StoredParameters } from './model-values';
+import type { OperatingPoint, SignalSpan, StoredParameters } from './model-values';
 
 /** One revision's values as the comparison needs them (times in s, ωn in rad/s). */
 export interface ComparableRevision {
@@ -21,9 +21,9 @@ export interface ComparableRevision {
 	gain: number | null;
 	timeConstantSeconds: number | null;
 	timeUnit: 's' | 'min';
-	mv: { name: string; unit: string; min: number; max: number };
-	pv: { name: string; unit: string; min: number; max: number };
-	operatingPoint: { mv: number | null; pv: number | null; note: string | null };
+	mv: SignalSpan;
+	pv: SignalSpan;
+	operatingPoint: OperatingPoint;
 	provenance: {
 		method: string;
 		testDate: string | null;
