@@ -23,8 +23,8 @@ import { largeChanges, type ChangeSnapshot, type LargeChange } from '../workflow
 import { parametersForForm, toStoredModel, type OperatingPoint, type SignalSpan, type StoredParameters } from '../workflow/model-values';
 import { compareRevisions, type ComparableRevision, type RevisionComparison } from '../workflow/revision-diff';
 import type { ModelCreateInput, RevisionInput, StructureValue } from '../schemas/revision';
-import { ConflictError, WorkflowConflict, enforce, isoOrNull, step, utcToday, type Acting, type WriteOptions } from './workflow-common';
-import { activeReviewers, enqueueMail, modelLink, notifyAuthorOfDecision, recipientById } from './mail/outbox';
+import { ConflictError, WorkflowConflict, auditActor, enforce, isoOrNull, recordReviewDecision, step, utcToday, type Acting, type WriteOptions } from './workflow-common';
+import { activeReviewers, enqueueMail, modelLink, recipientById } from './mail/outbox';
 import { reviewRequestedMail } from './mail/templates';
 
 /** The typed errors and options of the workflow writes, re-exported for routes. */
@@ -392,8 +392,6 @@ async function editConflict(revision: ModelRevision, rejected: RevisionInput, tr
 	);
 }
 
-const audit = (acting: Acting) => ({ actor: { id: acting.user.id, email: acting.user.email }, ip: acting.ip ?? null });
-
 // ── Writes ───────────────────────────────────────────────────────────────────────────────────
 
 /**
@@ -428,7 +426,7 @@ export async function createModel(acting: Acting, input: ModelCreateInput, optio
 				);
 				assetId = Number(asset.id);
 				await recordAudit(transaction, {
-					...audit(acting),
+					...auditActor(acting),
 					action: 'asset.create',
 					entityType: 'asset',
 					entityId: assetId,
@@ -468,7 +466,7 @@ export async function createModel(acting: Acting, input: ModelCreateInput, optio
 			await addContributor(transaction, Number(revision.id), acting.user.id);
 			await step(options, 'revision_saved');
 			await recordAudit(transaction, {
-				...audit(acting),
+				...auditActor(acting),
 				action: 'model.create',
 				entityType: 'plant_model',
 				entityId: Number(model.id),
@@ -526,7 +524,7 @@ export async function createRevision(acting: Acting, modelId: number, input: Rev
 		await addContributor(transaction, Number(revision.id), acting.user.id);
 		await step(options, 'revision_saved');
 		await recordAudit(transaction, {
-			...audit(acting),
+			...auditActor(acting),
 			action: 'revision.create',
 			entityType: 'model_revision',
 			entityId: Number(revision.id),
@@ -572,7 +570,7 @@ export async function updateDraft(
 			await step(options, 'revision_saved');
 			await addContributor(transaction, revisionId, acting.user.id);
 			await recordAudit(transaction, {
-				...audit(acting),
+				...auditActor(acting),
 				action: 'revision.update',
 				entityType: 'model_revision',
 				entityId: revisionId,
@@ -627,7 +625,7 @@ export async function submitForReview(
 		await revision.save({ transaction });
 		await step(options, 'revision_saved');
 		await recordAudit(transaction, {
-			...audit(acting),
+			...auditActor(acting),
 			action: 'revision.submit',
 			entityType: 'model_revision',
 			entityId: revisionId,
@@ -718,7 +716,7 @@ export async function approve(
 			previous.set({ state: 'superseded' });
 			await previous.save({ transaction });
 			await recordAudit(transaction, {
-				...audit(acting),
+				...auditActor(acting),
 				action: 'revision.supersede',
 				entityType: 'model_revision',
 				entityId: Number(previous.id),
@@ -730,30 +728,32 @@ export async function approve(
 		model.set({ approved_revision_id: revisionId, status: 'active' });
 		await model.save({ transaction });
 		await step(options, 'model_updated');
-		await recordAudit(transaction, {
-			...audit(acting),
-			action: 'revision.approve',
-			entityType: 'model_revision',
-			entityId: revisionId,
-			before: { state: before.state, model: modelBefore },
-			after: {
-				state: 'approved',
-				reviewComment: comment,
-				largeChanges: large.map((l) => l.message),
-				model: { status: 'active', approvedRevisionId: revisionId }
+		await recordReviewDecision(
+			transaction,
+			acting,
+			options,
+			{
+				action: 'revision.approve',
+				entityType: 'model_revision',
+				entityId: revisionId,
+				before: { state: before.state, model: modelBefore },
+				after: {
+					state: 'approved',
+					reviewComment: comment,
+					largeChanges: large.map((l) => l.message),
+					model: { status: 'active', approvedRevisionId: revisionId }
+				}
+			},
+			{
+				decision: 'approved',
+				kind: 'approved',
+				authorId: Number(revision.author_id),
+				entity: { type: 'model_revision', id: revisionId },
+				reviewerName: acting.user.name,
+				comment,
+				facts: () => revisionMailFacts(transaction, model, revision)
 			}
-		});
-		await step(options, 'audit_recorded');
-		await notifyAuthorOfDecision(transaction, {
-			decision: 'approved',
-			kind: 'approved',
-			authorId: Number(revision.author_id),
-			entity: { type: 'model_revision', id: revisionId },
-			reviewerName: acting.user.name,
-			comment,
-			facts: () => revisionMailFacts(transaction, model, revision)
-		});
-		await step(options, 'outbox_queued');
+		);
 		return { model: await toModelDto(model, transaction), revision: await toRevisionDto(revision, transaction), largeChanges: large };
 	});
 }
@@ -776,25 +776,27 @@ export async function requestChanges(
 		revision.set({ state: 'changes_requested', reviewer_id: acting.user.id, reviewed_at: new Date(), review_comment: comment });
 		await revision.save({ transaction });
 		await step(options, 'revision_saved');
-		await recordAudit(transaction, {
-			...audit(acting),
-			action: 'revision.request_changes',
-			entityType: 'model_revision',
-			entityId: revisionId,
-			before: { state: 'in_review' },
-			after: { state: 'changes_requested', reviewComment: comment }
-		});
-		await step(options, 'audit_recorded');
-		await notifyAuthorOfDecision(transaction, {
-			decision: 'changes_requested',
-			kind: 'changes_requested',
-			authorId: Number(revision.author_id),
-			entity: { type: 'model_revision', id: revisionId },
-			reviewerName: acting.user.name,
-			comment,
-			facts: () => revisionMailFacts(transaction, model, revision)
-		});
-		await step(options, 'outbox_queued');
+		await recordReviewDecision(
+			transaction,
+			acting,
+			options,
+			{
+				action: 'revision.request_changes',
+				entityType: 'model_revision',
+				entityId: revisionId,
+				before: { state: 'in_review' },
+				after: { state: 'changes_requested', reviewComment: comment }
+			},
+			{
+				decision: 'changes_requested',
+				kind: 'changes_requested',
+				authorId: Number(revision.author_id),
+				entity: { type: 'model_revision', id: revisionId },
+				reviewerName: acting.user.name,
+				comment,
+				facts: () => revisionMailFacts(transaction, model, revision)
+			}
+		);
 		return { model: await toModelDto(model, transaction), revision: await toRevisionDto(revision, transaction) };
 	});
 }
@@ -829,7 +831,7 @@ export async function discardRevision(
 		await revision.save({ transaction });
 		await step(options, 'revision_saved');
 		await recordAudit(transaction, {
-			...audit(acting),
+			...auditActor(acting),
 			action: 'revision.discard',
 			entityType: 'model_revision',
 			entityId: revisionId,
@@ -844,7 +846,7 @@ export async function discardRevision(
 				await model.save({ transaction });
 				await step(options, 'model_updated');
 				await recordAudit(transaction, {
-					...audit(acting),
+					...auditActor(acting),
 					action: 'model.withdraw',
 					entityType: 'plant_model',
 					entityId: Number(model.id),
@@ -895,7 +897,7 @@ export async function withdrawModel(acting: Acting, modelId: number, input: { re
 		await model.save({ transaction });
 		await step(options, 'model_updated');
 		await recordAudit(transaction, {
-			...audit(acting),
+			...auditActor(acting),
 			action: 'model.withdraw',
 			entityType: 'plant_model',
 			entityId: modelId,
@@ -972,7 +974,7 @@ export async function revalidate(
 		await model.save({ transaction });
 		await step(options, 'model_updated');
 		await recordAudit(transaction, {
-			...audit(acting),
+			...auditActor(acting),
 			action: 'model.revalidate',
 			entityType: 'plant_model',
 			entityId: modelId,

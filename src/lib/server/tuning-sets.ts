@@ -18,8 +18,8 @@ import { assertCan, can } from '../auth/roles';
 import { NotFound } from './errors';
 import { decide, TRANSITIONS, type WorkflowState } from '../workflow/state-machine';
 import type { TuningSetInput } from '../schemas/tuning-set';
-import { ConflictError, WorkflowConflict, enforce, isoOrNull, step, type Acting, type WriteOptions } from './workflow-common';
-import { activeReviewers, enqueueMail, modelLink, notifyAuthorOfDecision, recipientById } from './mail/outbox';
+import { ConflictError, WorkflowConflict, auditActor, enforce, isoOrNull, recordReviewDecision, step, type Acting, type WriteOptions } from './workflow-common';
+import { activeReviewers, enqueueMail, modelLink, recipientById } from './mail/outbox';
 import { reviewRequestedMail } from './mail/templates';
 import type { AllowedTransitions, PersonRef } from './revisions';
 
@@ -204,8 +204,6 @@ async function editConflict(t: TuningSet, rejected: TuningSetInput, transaction?
 	);
 }
 
-const audit = (acting: Acting) => ({ actor: { id: acting.user.id, email: acting.user.email }, ip: acting.ip ?? null });
-
 async function mailFacts(transaction: Transaction, model: PlantModel, t: TuningSet) {
 	const asset = await Asset.findByPk(model.asset_id, { transaction });
 	return {
@@ -253,7 +251,7 @@ export async function saveTuningDraft(acting: Acting, modelId: number, input: Tu
 		);
 		await addContributor(transaction, Number(t.id), acting.user.id);
 		await step(options, 'revision_saved');
-		await recordAudit(transaction, { ...audit(acting), action: 'tuning_set.create', entityType: 'tuning_set', entityId: Number(t.id), after: snapshot(t) });
+		await recordAudit(transaction, { ...auditActor(acting), action: 'tuning_set.create', entityType: 'tuning_set', entityId: Number(t.id), after: snapshot(t) });
 		await step(options, 'audit_recorded');
 		return toDto(t, transaction);
 	});
@@ -292,7 +290,7 @@ export async function updateTuningDraft(
 			await t.save({ transaction });
 			await step(options, 'revision_saved');
 			await addContributor(transaction, id, acting.user.id);
-			await recordAudit(transaction, { ...audit(acting), action: 'tuning_set.update', entityType: 'tuning_set', entityId: id, before, after: snapshot(t) });
+			await recordAudit(transaction, { ...auditActor(acting), action: 'tuning_set.update', entityType: 'tuning_set', entityId: id, before, after: snapshot(t) });
 			await step(options, 'audit_recorded');
 			return toDto(t, transaction);
 		});
@@ -335,7 +333,7 @@ export async function submitTuningSet(
 		await t.save({ transaction });
 		await step(options, 'revision_saved');
 		await recordAudit(transaction, {
-			...audit(acting),
+			...auditActor(acting),
 			action: 'tuning_set.submit',
 			entityType: 'tuning_set',
 			entityId: id,
@@ -357,6 +355,45 @@ export async function submitTuningSet(
 		await step(options, 'outbox_queued');
 		return { ...(await toDto(t, transaction)), notified: reviewers.length };
 	});
+}
+
+/**
+ * The common end of a review decision on a tuning set, after its state is saved: the audit event
+ * (in_review → the decision, with the comment and `extra`), then the mail to the author.
+ */
+async function closeReview(
+	transaction: Transaction,
+	acting: Acting,
+	options: WriteOptions | undefined,
+	model: PlantModel,
+	t: TuningSet,
+	decision: 'approved' | 'changes_requested',
+	comment: string | null,
+	extra: Record<string, unknown> = {}
+): Promise<WorkflowTuningSetDto> {
+	const id = Number(t.id);
+	await recordReviewDecision(
+		transaction,
+		acting,
+		options,
+		{
+			action: decision === 'approved' ? 'tuning_set.approve' : 'tuning_set.request_changes',
+			entityType: 'tuning_set',
+			entityId: id,
+			before: { state: 'in_review' },
+			after: { state: decision, reviewComment: comment, ...extra }
+		},
+		{
+			decision,
+			kind: decision === 'approved' ? 'tuning_approved' : 'tuning_changes_requested',
+			authorId: Number(t.author_id),
+			entity: { type: 'tuning_set', id },
+			reviewerName: acting.user.name,
+			comment,
+			facts: () => mailFacts(transaction, model, t)
+		}
+	);
+	return toDto(t, transaction);
 }
 
 async function reviewTuning(transaction: Transaction, acting: Acting, transition: 'approve' | 'request_changes', id: number, comment: string | null) {
@@ -408,26 +445,7 @@ export async function approveTuningSet(
 			await o.save({ transaction });
 		}
 		await step(options, 'model_updated');
-		await recordAudit(transaction, {
-			...audit(acting),
-			action: 'tuning_set.approve',
-			entityType: 'tuning_set',
-			entityId: id,
-			before: { state: 'in_review' },
-			after: { state: 'approved', reviewComment: comment, superseded: older.map((o) => Number(o.id)) }
-		});
-		await step(options, 'audit_recorded');
-		await notifyAuthorOfDecision(transaction, {
-			decision: 'approved',
-			kind: 'tuning_approved',
-			authorId: Number(t.author_id),
-			entity: { type: 'tuning_set', id },
-			reviewerName: acting.user.name,
-			comment,
-			facts: () => mailFacts(transaction, model, t)
-		});
-		await step(options, 'outbox_queued');
-		return toDto(t, transaction);
+		return closeReview(transaction, acting, options, model, t, 'approved', comment, { superseded: older.map((o) => Number(o.id)) });
 	});
 }
 
@@ -443,26 +461,7 @@ export async function requestTuningChanges(acting: Acting, id: number, input: { 
 		t.set({ state: 'changes_requested', reviewer_id: acting.user.id, reviewed_at: new Date(), review_comment: comment });
 		await t.save({ transaction });
 		await step(options, 'revision_saved');
-		await recordAudit(transaction, {
-			...audit(acting),
-			action: 'tuning_set.request_changes',
-			entityType: 'tuning_set',
-			entityId: id,
-			before: { state: 'in_review' },
-			after: { state: 'changes_requested', reviewComment: comment }
-		});
-		await step(options, 'audit_recorded');
-		await notifyAuthorOfDecision(transaction, {
-			decision: 'changes_requested',
-			kind: 'tuning_changes_requested',
-			authorId: Number(t.author_id),
-			entity: { type: 'tuning_set', id },
-			reviewerName: acting.user.name,
-			comment,
-			facts: () => mailFacts(transaction, model, t)
-		});
-		await step(options, 'outbox_queued');
-		return toDto(t, transaction);
+		return closeReview(transaction, acting, options, model, t, 'changes_requested', comment);
 	});
 }
 
@@ -487,7 +486,7 @@ export async function discardTuningSet(acting: Acting, id: number, input: { comm
 		t.set({ state: 'withdrawn' });
 		await t.save({ transaction });
 		await step(options, 'revision_saved');
-		await recordAudit(transaction, { ...audit(acting), action: 'tuning_set.discard', entityType: 'tuning_set', entityId: id, before: { state: before }, after: { state: 'withdrawn', comment } });
+		await recordAudit(transaction, { ...auditActor(acting), action: 'tuning_set.discard', entityType: 'tuning_set', entityId: id, before: { state: before }, after: { state: 'withdrawn', comment } });
 		await step(options, 'audit_recorded');
 		return toDto(t, transaction);
 	});

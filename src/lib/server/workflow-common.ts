@@ -7,6 +7,8 @@ import type { Transaction } from 'sequelize';
 import { PermissionDenied, type Role } from '../auth/roles';
 import { Conflict, InvalidInput } from './errors';
 import type { Decision } from '../workflow/state-machine';
+import { recordAudit } from './audit';
+import { notifyAuthorOfDecision, type AuthorDecisionNotice } from './mail/outbox';
 
 /** Who is acting: the signed-in person (id, email, name, current role) and their client address. */
 export interface Acting {
@@ -84,3 +86,26 @@ export function daysFromTo(from: string, to: string): number {
 
 /** Marker type of the transaction every helper below needs. */
 export type Tx = Transaction;
+
+/** The actor and client address of an audit event for `acting`. */
+export function auditActor(acting: Acting): { actor: { id: number; email: string }; ip: string | null } {
+	return { actor: { id: acting.user.id, email: acting.user.email }, ip: acting.ip ?? null };
+}
+
+/**
+ * The common end of a review decision (approve or send back) on a revision or a tuning set, once
+ * its new state is saved in `transaction`: the audit event, then the mail to the author, each
+ * followed by its injectable failure point (`audit_recorded`, `outbox_queued`).
+ */
+export async function recordReviewDecision(
+	transaction: Transaction,
+	acting: Acting,
+	options: WriteOptions | undefined,
+	event: { action: string; entityType: string; entityId: number; before: Record<string, unknown>; after: Record<string, unknown> },
+	notice: AuthorDecisionNotice
+): Promise<void> {
+	await recordAudit(transaction, { ...auditActor(acting), ...event });
+	await step(options, 'audit_recorded');
+	await notifyAuthorOfDecision(transaction, notice);
+	await step(options, 'outbox_queued');
+}
