@@ -100,7 +100,7 @@ const L = REVISION_FIELD_LABELS;
 const DECIMAL = /^[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?$/;
 
 /** '' / null / undefined → undefined; a decimal string → number; anything else unchanged (fails later). */
-function toNumber(v: unknown): unknown {
+export function toNumber(v: unknown): unknown {
 	if (v === undefined || v === null) return undefined;
 	if (typeof v === 'string') {
 		const t = v.trim();
@@ -110,7 +110,8 @@ function toNumber(v: unknown): unknown {
 	return v;
 }
 
-function toText(v: unknown): unknown {
+/** '' / null / undefined / blank → undefined; text trimmed with line ends normalised to \n. */
+export function toText(v: unknown): unknown {
 	if (v === undefined || v === null) return undefined;
 	if (typeof v === 'string') {
 		const t = v.replace(/\r\n?/g, '\n').trim();
@@ -125,7 +126,7 @@ const finite = (label: string) =>
 		.refine((x) => Number.isFinite(x), `${label} must be a finite number.`);
 
 /** An optional number: empty → undefined. */
-const optionalNumber = (label: string) => z.preprocess(toNumber, finite(label).optional());
+export const optionalNumber = (label: string) => z.preprocess(toNumber, finite(label).optional());
 /** A required number. */
 const requiredNumber = (label: string) =>
 	z.preprocess(toNumber, z.number({ error: (i) => (i.input === undefined ? `${label}: enter a value.` : `${label}: enter a number.`) }).refine(

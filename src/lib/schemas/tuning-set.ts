@@ -9,7 +9,7 @@
  * entered in `timeUnit` (s by default) and stored in seconds.
  */
 import { z } from 'zod';
-import { fieldErrors, formValues } from './revision';
+import { fieldErrors, formValues, optionalNumber, toNumber, toText } from './revision';
 
 /** The same error and FormData helpers as the revision schemas. */
 export { fieldErrors, formValues };
@@ -57,33 +57,6 @@ export interface TuningSetInput {
 	predicted: Record<string, number | null> | null;
 	notes: string | null;
 }
-
-const DECIMAL = /^[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?$/;
-function toNumber(v: unknown): unknown {
-	if (v === undefined || v === null) return undefined;
-	if (typeof v === 'string') {
-		const t = v.trim();
-		if (t === '') return undefined;
-		return DECIMAL.test(t) ? Number(t) : v;
-	}
-	return v;
-}
-function toText(v: unknown): unknown {
-	if (v === undefined || v === null) return undefined;
-	if (typeof v === 'string') {
-		const t = v.replace(/\r\n?/g, '\n').trim();
-		return t === '' ? undefined : t;
-	}
-	return v;
-}
-const optionalNumber = (label: string) =>
-	z.preprocess(
-		toNumber,
-		z
-			.number({ error: `${label}: enter a number.` })
-			.refine((x) => Number.isFinite(x), `${label} must be a finite number.`)
-			.optional()
-	);
 
 /** JSON text or an object of metric → number|null. */
 function toPredicted(v: unknown): unknown {
